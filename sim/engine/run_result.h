@@ -1,0 +1,97 @@
+// What one simulation measured. Plain value types filled by the engine's
+// units; the energy model and the report layer only read them.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "trace/trace_op.h"
+
+namespace tritsim {
+
+// Tree-array cycles by cause. The five fields sum exactly to the run's
+// total core cycles.
+struct StallBreakdown {
+  uint64_t busy = 0;           // the array is computing
+  uint64_t dram_wait = 0;      // waiting for a weight/activation tile from DRAM
+  uint64_t sram_conflict = 0;  // delayed by scratchpad bank conflicts
+  uint64_t vector_wait = 0;    // waiting for the vector unit (a dependence)
+  uint64_t idle = 0;           // nothing to do (start-up, drain, write-back)
+  uint64_t total() const { return busy + dram_wait + sram_conflict + vector_wait + idle; }
+};
+
+// Events that cost energy, counted by the units that cause them.
+struct EventCounts {
+  uint64_t weight_uses = 0;        // activation x weight products in the array (= K*N*M per GEMM)
+  uint64_t weight_uses_zero = 0;   // of those, with a zero trit (gateable)
+  uint64_t accumulator_adds = 0;   // accumulator updates (one per tree output per K chunk)
+  uint64_t decoder_bytes = 0;      // packed base-3 bytes expanded by the trit decoder
+  uint64_t vector_macs = 0;        // int8 multiply-accumulates in the vector unit
+  uint64_t vector_special = 0;     // special-function evaluations (exp, rsqrt, act)
+  uint64_t vector_elementwise = 0; // elementwise adds/multiplies (residual, norm scale, quantize)
+  uint64_t sram_reads = 0;         // bank accesses of bank_width_bytes
+  uint64_t sram_writes = 0;
+  uint64_t dram_bytes_read = 0;
+  uint64_t dram_bytes_written = 0;
+  uint64_t dram_activates = 0;
+  uint64_t dram_refreshes = 0;     // all-bank refresh commands, summed over channels
+};
+
+struct DramStats {
+  uint64_t reads = 0;              // requests (one burst each)
+  uint64_t writes = 0;
+  uint64_t row_hits = 0;
+  uint64_t row_misses = 0;         // closed bank: ACT needed
+  uint64_t row_conflicts = 0;      // other row open: PRE + ACT needed
+  uint64_t activates = 0;
+  uint64_t refreshes = 0;
+  uint64_t busy_ps = 0;            // data-bus busy time, summed over channels
+  uint64_t refresh_ps = 0;         // time in refresh, summed over channels
+  double row_hit_rate() const {
+    uint64_t n = row_hits + row_misses + row_conflicts;
+    return n ? double(row_hits) / double(n) : 0.0;
+  }
+};
+
+enum class Regime { kMemory, kCompute };
+
+// One trace op as it ran.
+struct OpResult {
+  TraceOp op;
+  uint64_t start_cycle = 0;
+  uint64_t cycles = 0;             // core cycles from the op's start to its end
+  uint64_t ops = 0;                // arithmetic ops (2 per multiply-equivalent+add, common practice)
+  uint64_t dram_bytes = 0;         // read + written on behalf of this op
+  uint64_t bound_cycles = 0;       // roofline lower bound max(ops/peak, bytes/bandwidth)
+  Regime regime = Regime::kMemory; // which term of the bound dominates
+  double intensity() const { return dram_bytes ? double(ops) / double(dram_bytes) : 0.0; }
+};
+
+struct PhaseResult {
+  Phase phase = Phase::kDecode;
+  uint64_t cycles = 0;
+  uint64_t tokens = 0;             // tokens produced or consumed (batch x tokens)
+};
+
+struct RunResult {
+  std::string arch_name;
+  std::string model_name;
+  double core_mhz = 0.0;
+  uint64_t cycles = 0;             // total core cycles
+  uint64_t sim_ps = 0;             // total simulated time, ps
+  uint64_t ops = 0;
+  uint64_t tokens = 0;             // generated tokens (decode x batch), or prompt tokens if no decode
+  uint64_t first_token_cycles = 0; // start to the end of the first decode step (or prefill)
+  std::vector<PhaseResult> phases;
+  std::vector<OpResult> layers;    // one per trace op, in order
+  StallBreakdown stalls;
+  EventCounts events;
+  DramStats dram;
+  uint64_t vector_busy_cycles = 0;
+  uint64_t sram_port_busy_cycles = 0;  // cycles with a scratchpad port in use, summed over banks/ports
+  double peak_ops_per_second = 0.0;
+  double dram_peak_bytes_per_second = 0.0;
+};
+
+}  // namespace tritsim
