@@ -1,0 +1,60 @@
+// Names and limits shared by the trace reader, the trace writer and the
+// report layer: the text spelling of every trace enum, and the caps the
+// reader enforces (docs/trace-format.md).
+//
+// Names are lowercase snake case and stable: they appear in trace files,
+// JSON and CSV reports, so renaming one breaks stored files.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <string_view>
+
+#include "config/model_config.h"
+#include "trace/trace_op.h"
+
+namespace tritsim {
+
+// First token of the first line of every trace file, followed by the version.
+inline constexpr const char* kTraceMagic = "tritsim-trace";
+// The only format version this build reads and writes.
+inline constexpr int kTraceVersion = 1;
+
+// Reader limits. They reject corrupt numbers early and keep products such as
+// m * n * k far from int64 overflow; none is a hardware limit.
+inline constexpr int64_t kTraceMaxDim = int64_t{1} << 31;      // m, n, k
+inline constexpr int64_t kTraceMaxContext = int64_t{1} << 24;  // context, step tokens
+inline constexpr int64_t kTraceMaxHeads = int64_t{1} << 16;    // heads, kv_heads, head_dim
+inline constexpr int64_t kTraceMaxLayer = int64_t{1} << 16;    // layer index is < this
+inline constexpr int64_t kTraceMaxBatch = int64_t{1} << 20;    // batch
+inline constexpr int64_t kTraceMaxSteps = int64_t{1} << 31;    // decode steps
+inline constexpr size_t kTraceMaxLineChars = 4096;             // characters per line, without '\n'
+
+// Text names of enum values, e.g. OpKindName(OpKind::kAttnScores) ==
+// "attn_scores". Never null; the pointers are static.
+const char* OpKindName(OpKind kind);
+const char* PhaseName(Phase phase);
+const char* TensorClassName(TensorClass tensor);
+const char* WeightFormatName(WeightFormat format);
+
+// Spelling of the `weights` field of an op whose tensor class is kNone (it
+// reads no weights, so its TraceOp::weights is left at the default).
+inline constexpr const char* kNoWeightsName = "none";
+
+// Inverse of the above: true and `*out` set if `text` is a known name.
+bool ParseOpKind(std::string_view text, OpKind* out);
+bool ParsePhase(std::string_view text, Phase* out);
+bool ParseTensorClass(std::string_view text, TensorClass* out);
+bool ParseWeightFormat(std::string_view text, WeightFormat* out);
+
+// The allowed names for error messages, e.g. "prefill | decode".
+std::string AllowedOpKinds();
+std::string AllowedPhases();
+std::string AllowedTensorClasses();
+std::string AllowedWeightFormats();
+
+// Shortest decimal text that reads back to exactly `value` (std::to_chars),
+// so read -> write of a trace is byte-identical.
+std::string FormatTraceDouble(double value);
+
+}  // namespace tritsim
