@@ -1,0 +1,166 @@
+// DRAM preset tables. Each value names its source and a confidence level,
+// as in /work/shared/REFERENCES.md: H read in a standard or datasheet, M
+// several secondary copies agree, L from memory only.
+//
+// Timing is in DRAM clock cycles of our convention: two data transfers per
+// tCK. Values specified in ns are converted with ceil(ns / tCK), the usual
+// rounding of a minimum delay up to whole clocks (common practice).
+#include "config/dram_presets.h"
+
+#include <cmath>
+
+#include "common/error.h"
+#include "config/config_loader.h"
+
+namespace tritsim {
+namespace {
+
+// Divides with a small tolerance so that e.g. 3900 ns at tCK 1/1.8 ns gives
+// 7020 cycles, not 7021 from floating-point noise.
+int64_t NsToCycles(double ns, double tck_ns) {
+  constexpr double kRoundingSlack = 1e-9;
+  return static_cast<int64_t>(std::ceil(ns / tck_ns - kRoundingSlack));
+}
+
+// DDR4-3200AA, 8 Gb x8 devices, 64-bit channel (JESD79-4 and device
+// datasheets, via REFERENCES.md).
+void ApplyDdr4_3200(DramConfig& d) {
+  d.bus_width_bits = 64;    // one 64-bit channel (JESD79-4 DIMM; H)
+  d.bank_groups = 4;        // 4 bank groups for x8 (JESD79-4; H)
+  d.banks_per_group = 4;    // 4 banks per group (JESD79-4; H)
+  d.row_bytes = 8192;       // 1 KB page per x8 device x 8 devices (JESD79-4; H)
+  DramTiming& t = d.timing;
+  t.tCK_ns = 0.625;         // 1600 MHz clock, 3200 MT/s (JESD79-4; H)
+  t.CL = 22;                // 13.75 ns, speed bin 3200AA (JESD79-4; H)
+  t.CWL = 16;               // CWL for 3200 without write preamble option (JESD79-4; M)
+  t.tRCD = 22;              // 13.75 ns (JESD79-4; H)
+  t.tRP = 22;               // 13.75 ns (JESD79-4; H)
+  t.tRAS = 52;              // 32 ns (JESD79-4; H)
+  t.tRC = 74;               // 45.75 ns = tRAS + tRP (JESD79-4; H)
+  t.tCCD_S = 4;             // (JESD79-4; H)
+  t.tCCD_L = 8;             // 5 ns at 3200 (JESD79-4; H)
+  t.tRRD_S = 4;             // 1 KB page (JESD79-4; L, REFERENCES.md)
+  t.tRRD_L = 8;             // 1 KB page (JESD79-4; M)
+  t.tFAW = 34;              // 21 ns, 1 KB page (JESD79-4; M)
+  t.tWR = 24;               // 15 ns (JESD79-4; H)
+  t.tWTR_S = 4;             // 2.5 ns (JESD79-4; M)
+  t.tWTR_L = 12;            // 7.5 ns (JESD79-4; M)
+  t.tRTP = 12;              // 7.5 ns (JESD79-4; M)
+  t.tRFC = 560;             // tRFC1 350 ns, 8 Gb device (JESD79-4; H)
+  t.tREFI = 12480;          // 7.8 us, normal temperature (JESD79-4; H)
+  t.burst_length = 8;       // BL8 (JESD79-4; H)
+}
+
+// LPDDR5-6400, one x16 channel (JESD209-5, via REFERENCES.md). tCK here is
+// our two-transfers-per-tCK unit, 1 / 3200 MHz = 0.3125 ns (a quarter of the
+// 800 MHz command clock period), so ns values convert at 0.3125 ns/cycle.
+void ApplyLpddr5_6400(DramConfig& d) {
+  constexpr double kTck = 0.3125;  // 6400 MT/s / 2 (JESD209-5 data rate; H)
+  d.bus_width_bits = 16;    // x16 channel (JESD209-5; H)
+  d.bank_groups = 4;        // BG mode above 3200 Mbps (JESD209-5; M)
+  d.banks_per_group = 4;    // 16 banks (JESD209-5; M)
+  d.row_bytes = 2048;       // 2 KB page per x16 channel (JESD209-5; L)
+  DramTiming& t = d.timing;
+  t.tCK_ns = kTck;
+  t.CL = NsToCycles(21.25, kTck);   // RL 17 nCK of 800 MHz CK (JESD209-5; L)
+  t.CWL = NsToCycles(11.25, kTck);  // WL 9 nCK of 800 MHz CK (JESD209-5; L)
+  t.tRCD = NsToCycles(18.0, kTck);  // 18 ns (JESD209-5; L)
+  t.tRP = NsToCycles(18.0, kTck);   // tRPpb 18 ns (JESD209-5; L)
+  t.tRAS = NsToCycles(42.0, kTck);  // 42 ns (JESD209-5; L)
+  t.tRC = t.tRAS + t.tRP;           // tRC = tRAS + tRPpb (JESD209-5; L)
+  t.tCCD_S = 8;                     // BL16 / 2 (JESD209-5; M)
+  t.tCCD_L = 16;                    // same bank group, BG mode (JESD209-5; L)
+  t.tRRD_S = NsToCycles(5.0, kTck); // 5 ns (JESD209-5; L)
+  t.tRRD_L = NsToCycles(5.0, kTck); // 5 ns (JESD209-5; L)
+  t.tFAW = NsToCycles(20.0, kTck);  // 20 ns (JESD209-5; L)
+  t.tWR = NsToCycles(34.0, kTck);   // 34 ns (JESD209-5; L)
+  t.tWTR_S = NsToCycles(6.25, kTck);  // 6.25 ns (JESD209-5; L)
+  t.tWTR_L = NsToCycles(12.0, kTck);  // 12 ns (JESD209-5; L)
+  t.tRTP = NsToCycles(7.5, kTck);     // 7.5 ns (JESD209-5; L)
+  t.tRFC = NsToCycles(280.0, kTck);   // tRFCab 280 ns, 8 Gb die (JESD209-5; L)
+  t.tREFI = NsToCycles(3900.0, kTck); // 3.9 us (JESD209-5; L)
+  t.burst_length = 16;              // BL16 (JESD209-5; H)
+}
+
+// HBM2E at 3.6 Gb/s per pin, one 64-bit pseudo-channel (JESD235 family, via
+// REFERENCES.md). tCK = 1 / 1.8 GHz = 0.5556 ns.
+void ApplyHbm2e(DramConfig& d) {
+  constexpr double kTck = 1000.0 / 1800.0;  // 3.6 Gb/s / 2 (JESD235; H)
+  d.bus_width_bits = 64;    // pseudo-channel mode, 16 x 64 bits per stack (JESD235A; H)
+  d.bank_groups = 4;        // (JESD235A; M)
+  d.banks_per_group = 4;    // 16 banks per pseudo-channel (JESD235A; M)
+  d.row_bytes = 1024;       // 1 KB page per pseudo-channel (JESD235A; M)
+  DramTiming& t = d.timing;
+  t.tCK_ns = kTck;
+  t.CL = NsToCycles(14.0, kTck);    // about 14 ns (JESD235; L)
+  t.CWL = NsToCycles(4.0, kTck);    // a few nCK (JESD235; L)
+  t.tRCD = NsToCycles(14.0, kTck);  // about 14 ns (JESD235; L)
+  t.tRP = NsToCycles(14.0, kTck);   // about 14 ns (JESD235; L)
+  t.tRAS = NsToCycles(33.0, kTck);  // 33 ns (JESD235; L)
+  t.tRC = t.tRAS + t.tRP;           // tRC = tRAS + tRP (common practice)
+  t.tCCD_S = 2;                     // BL4 / 2 (JESD235A; M)
+  t.tCCD_L = 4;                     // same bank group (JESD235A; M)
+  t.tRRD_S = 4;                     // (JESD235; L)
+  t.tRRD_L = 6;                     // (JESD235; L)
+  t.tFAW = NsToCycles(16.0, kTck);  // 16 ns (JESD235; L)
+  t.tWR = NsToCycles(16.0, kTck);   // 16 ns (JESD235; L)
+  t.tWTR_S = NsToCycles(2.5, kTck); // 2.5 ns (JESD235; L)
+  t.tWTR_L = NsToCycles(7.5, kTck); // 7.5 ns (JESD235; L)
+  t.tRTP = NsToCycles(7.5, kTck);   // 7.5 ns (JESD235; L)
+  t.tRFC = NsToCycles(350.0, kTck); // 350 ns, 8 Gb channel (JESD235; L)
+  t.tREFI = NsToCycles(3900.0, kTck);  // 3.9 us (JESD235; L)
+  t.burst_length = 4;               // BL4 (JESD235A; H)
+}
+
+// Fixed-latency, fixed-bandwidth memory for sanity runs; the timing fields
+// keep their DDR4-3200 defaults and are not used.
+void ApplyIdeal(DramConfig& d) {
+  d.ideal_latency_ns = 50.0;       // a typical DRAM load-to-use latency (common practice)
+  d.ideal_bandwidth_gbps = 25.6;   // one DDR4-3200 channel (JESD79-4; H)
+}
+
+}  // namespace
+
+const std::vector<std::string>& DramPresetNames() {
+  static const std::vector<std::string> kNames = {"ddr4-3200", "lpddr5-6400", "hbm2e", "ideal"};
+  return kNames;
+}
+
+bool IsDramPreset(const std::string& name) {
+  for (const std::string& n : DramPresetNames()) {
+    if (n == name) return true;
+  }
+  return false;
+}
+
+void ApplyDramPreset(const std::string& preset, DramConfig& dram) {
+  if (preset == "ddr4-3200") {
+    ApplyDdr4_3200(dram);
+  } else if (preset == "lpddr5-6400") {
+    ApplyLpddr5_6400(dram);
+  } else if (preset == "hbm2e") {
+    ApplyHbm2e(dram);
+  } else if (preset == "ideal") {
+    ApplyIdeal(dram);
+  } else {
+    throw Error(ExitCode::kBadInput, "dram.preset: unknown preset '" + preset +
+                                         "'; allowed: ddr4-3200, lpddr5-6400, hbm2e, ideal");
+  }
+  dram.preset = preset;
+}
+
+int64_t DramBurstBytes(const DramConfig& dram) {
+  return dram.bus_width_bits / 8 * dram.timing.burst_length;
+}
+
+double DramPeakBytesPerSecond(const DramConfig& dram) {
+  constexpr double kBytesPerGb = 1e9;
+  if (dram.is_ideal()) return dram.ideal_bandwidth_gbps * kBytesPerGb;
+  constexpr double kTransfersPerTck = 2.0;  // double data rate
+  constexpr double kNsPerSecond = 1e9;
+  const double transfers_per_second = kTransfersPerTck / dram.timing.tCK_ns * kNsPerSecond;
+  return static_cast<double>(dram.channels) * transfers_per_second *
+         static_cast<double>(dram.bus_width_bits / 8);
+}
+
+}  // namespace tritsim
