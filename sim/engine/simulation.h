@@ -1,0 +1,21 @@
+// Runs one simulation: elaborates the accelerator (SystemC), replays the
+// trace on it, and returns what the units measured.
+//
+// SystemC elaborates once per process: call this at most once per process
+// (tests run each simulating test in its own process; sweeps run one process
+// per design point). This header keeps SystemC out of its includers.
+#pragma once
+
+#include "config/arch_config.h"
+#include "engine/run_result.h"
+#include "engine/sim_options.h"
+#include "trace/trace_source.h"
+
+namespace tritsim {
+
+// REQUIRES: `arch` validated by the config loader. Throws tritsim::Error:
+// exit 3 for a malformed trace record, exit 4 when a tile cannot fit or the
+// watchdog finds the simulation stuck (naming the unit and what it waits for).
+RunResult RunSimulation(const ArchConfig& arch, TraceSource& trace, const SimOptions& options);
+
+}  // namespace tritsim

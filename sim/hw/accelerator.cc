@@ -1,0 +1,37 @@
+#include "hw/accelerator.h"
+
+namespace tritsim {
+
+Accelerator::Accelerator(sc_core::sc_module_name name, const ArchConfig& arch,
+                         const SimOptions& options, TraceSource& trace)
+    : sc_core::sc_module(name),
+      arch_(arch),
+      memory_(MakeMemorySystem(arch.dram)),
+      period_ps_(ComputeRates(arch).core_period_ps),
+      sram_("scratchpad", arch.sram),
+      dma_("dma", arch.dma, period_ps_, *memory_, sram_, uint64_t(arch.sram.bank_width_bytes)),
+      tree_array_("tree_array", arch.array, period_ps_, sram_),
+      vector_unit_("vector_unit", arch.vector, period_ps_, sram_),
+      sequencer_("sequencer", arch, options, trace, dma_, tree_array_, vector_unit_) {}
+
+void Accelerator::Collect(RunResult& result) {
+  sequencer_.Collect(result);
+  memory_->Finish(sequencer_.end_ps());
+  const HardwareRates& rates = sequencer_.rates();
+  result.core_mhz = 1e6 / double(period_ps_);
+  result.dram = memory_->stats();
+  tree_array_.AddEvents(result.events);
+  vector_unit_.AddEvents(result.events);
+  result.events.sram_reads = sram_.reads();
+  result.events.sram_writes = sram_.writes();
+  result.events.dram_bytes_read = dma_.bytes_loaded();
+  result.events.dram_bytes_written = dma_.bytes_stored();
+  result.events.dram_activates = result.dram.activates;
+  result.events.dram_refreshes = result.dram.refreshes;
+  result.vector_busy_cycles = vector_unit_.busy_cycles();
+  result.sram_port_busy_cycles = sram_.reads() + sram_.writes() + sram_.conflict_cycles();
+  result.peak_ops_per_second = rates.array_ops_per_cycle / (double(period_ps_) * 1e-12);
+  result.dram_peak_bytes_per_second = rates.dram_bytes_per_cycle / (double(period_ps_) * 1e-12);
+}
+
+}  // namespace tritsim

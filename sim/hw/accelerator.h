@@ -1,0 +1,47 @@
+// The accelerator top level: scratchpad, DMA engine, tree array, vector
+// unit and sequencer, wired together, plus the memory system behind the
+// DMA engine.
+#pragma once
+
+#include <memory>
+#include <string>
+
+#include <systemc>
+
+#include "config/arch_config.h"
+#include "engine/run_result.h"
+#include "engine/sim_options.h"
+#include "hw/dma_engine.h"
+#include "hw/memory_system.h"
+#include "hw/scratchpad.h"
+#include "hw/sequencer.h"
+#include "hw/tree_array.h"
+#include "hw/vector_unit.h"
+#include "trace/trace_source.h"
+
+namespace tritsim {
+
+class Accelerator : public sc_core::sc_module {
+ public:
+  Accelerator(sc_core::sc_module_name name, const ArchConfig& arch, const SimOptions& options,
+              TraceSource& trace);
+
+  bool finished() const { return sequencer_.finished(); }
+  void RethrowIfFailed() const { sequencer_.RethrowIfFailed(); }
+  std::string WaitState() const { return sequencer_.WaitState(); }
+
+  // Everything measured, after the simulation has finished.
+  void Collect(RunResult& result);
+
+ private:
+  ArchConfig arch_;
+  std::unique_ptr<MemorySystem> memory_;
+  uint64_t period_ps_;
+  Scratchpad sram_;
+  DmaEngine dma_;
+  TreeArray tree_array_;
+  VectorUnit vector_unit_;
+  Sequencer sequencer_;
+};
+
+}  // namespace tritsim

@@ -1,0 +1,112 @@
+// Sequencer: takes trace ops in order and drives the hardware.
+//
+// Two SC_THREADs share a bounded queue of work items (the tiler's tiles):
+//  - IssueThread pulls records from the trace, plans each op with the
+//    Tiler, and for every item waits for a free scratchpad slot (two slots:
+//    double buffering), then loads the item's operands through the DMA
+//    engine. A load of data an earlier op stored (spilled activations, the
+//    KV cache just appended) waits until those ops have retired.
+//  - ComputeThread takes loaded items in order and runs them on the tree
+//    array or the vector unit, posts their stores, and retires an op when
+//    its last item has run and its stores have reached DRAM.
+// The compute thread's timeline is the tree array's: every core cycle of the
+// run is charged to exactly one StallBreakdown cause.
+#pragma once
+
+#include <cstdint>
+#include <deque>
+#include <exception>
+#include <map>
+#include <string>
+#include <tuple>
+#include <vector>
+
+#include <systemc>
+
+#include "engine/run_result.h"
+#include "engine/tiler.h"
+#include "hw/compute_unit.h"
+#include "hw/dma_engine.h"
+#include "trace/trace_source.h"
+
+namespace tritsim {
+
+class Sequencer : public sc_core::sc_module {
+ public:
+  SC_HAS_PROCESS(Sequencer);
+  Sequencer(sc_core::sc_module_name name, const ArchConfig& arch, const SimOptions& options,
+            TraceSource& trace, DmaEngine& dma, ComputeUnitIf& tree_array,
+            ComputeUnitIf& vector_unit);
+
+  bool finished() const { return finished_; }
+  // Rethrows an error raised inside a thread (bad trace record, tile too big).
+  void RethrowIfFailed() const;
+  // For the watchdog: what each thread is waiting for.
+  std::string WaitState() const;
+
+  // Fills the timing fields of `result` (cycles, phases, layers, stalls).
+  void Collect(RunResult& result) const;
+  const HardwareRates& rates() const { return tiler_.rates(); }
+  uint64_t end_ps() const { return end_ps_; }
+
+ private:
+  struct OpInFlight {
+    int64_t index = 0;
+    size_t result_index = 0;      // into layers_
+    uint64_t span_start_ps = UINT64_MAX;
+    uint64_t ops = 0;
+    uint64_t dram_bytes = 0;
+    Unit unit = Unit::kTreeArray;
+    Phase phase = Phase::kDecode;
+    int64_t step = 0;
+  };
+
+  void IssueThread();
+  void ComputeThread();
+  void IssueOp(const TraceOp& op, const TraceStep& step);
+  void RunItem(const WorkItem& item);
+  void RetireOp(OpInFlight& op);
+  void Charge(uint64_t& bucket);
+  void AlignToCycle();
+  size_t ResultIndex(const TraceOp& op);
+  void Fail(std::exception_ptr error);
+
+  ArchConfig arch_;
+  TraceSource& trace_;
+  DmaEngine& dma_;
+  ComputeUnitIf& tree_array_;
+  ComputeUnitIf& vector_unit_;
+  Tiler tiler_;
+  uint64_t period_ps_;
+
+  static constexpr int kSlots = 2;  // double buffering
+  int free_slots_ = kSlots;
+  std::deque<WorkItem> loaded_;           // issue -> compute
+  std::deque<OpInFlight> ops_in_flight_;  // planned, not yet retired
+  int64_t ops_issued_ = 0;
+  int64_t ops_retired_ = 0;
+  bool trace_done_ = false;
+  bool finished_ = false;
+  std::exception_ptr error_;
+  sc_core::sc_event slot_freed_;
+  sc_core::sc_event item_loaded_;
+  sc_core::sc_event op_retired_;
+  std::string issue_state_ = "not started";
+  std::string compute_state_ = "not started";
+
+  // Accounting on the compute timeline.
+  uint64_t mark_ps_ = 0;
+  StallBreakdown stalls_;
+  uint64_t end_ps_ = 0;
+  bool saw_prefill_ = false;
+  uint64_t prefill_end_ps_ = 0;
+  uint64_t first_decode_end_ps_ = 0;
+  int64_t decode_steps_ = 0;
+  uint64_t prefill_tokens_ = 0;
+  uint64_t decode_tokens_ = 0;
+  uint64_t total_ops_ = 0;
+  std::vector<OpResult> layers_;
+  std::map<std::tuple<int, int64_t, std::string>, size_t> layer_index_;
+};
+
+}  // namespace tritsim
