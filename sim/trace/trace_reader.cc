@@ -18,6 +18,7 @@ namespace {
 struct LineError {
   std::string key;      // e.g. "op.m"; empty when the line as a whole is bad
   std::string message;  // bad value and what is allowed
+  bool about_bytes = false;  // bad bytes or length: never reported as a truncated record
 };
 
 // Bits allowed for activations and KV entries (as in the model description).
@@ -53,13 +54,15 @@ void CheckText(std::string_view line) {
   for (size_t i = 0; i < line.size();) {
     const unsigned char c = static_cast<unsigned char>(line[i]);
     const std::string column = std::to_string(i + 1);
-    if (c == 0) throw LineError{"", "NUL byte at column " + column + " (binary data?)"};
+    if (c == 0) throw LineError{"", "NUL byte at column " + column + " (binary data?)", true};
     if ((c < ' ' && c != '\t') || c == 0x7f) {
       throw LineError{"", "control byte " + std::to_string(c) + " at column " + column +
-                              " (binary data?)"};
+                              " (binary data?)", true};
     }
     const size_t length = Utf8SequenceLength(line, i);
-    if (length == 0) throw LineError{"", "invalid UTF-8 at column " + column + " (binary data?)"};
+    if (length == 0) {
+      throw LineError{"", "invalid UTF-8 at column " + column + " (binary data?)", true};
+    }
     i += length;
   }
 }
@@ -94,8 +97,7 @@ class Fields {
     for (const auto& [k, v] : fields_) {
       if (k == key) return v;
     }
-    throw LineError{Path(key), "missing field (a " + record_ + " line needs " + AllowedKeys() +
-                                   ")"};
+    throw LineError{Path(key), "missing field (" + record_ + " lines need " + AllowedKeys() + ")"};
   }
 
   // An integer in [min, max].
@@ -323,7 +325,7 @@ class TraceFileReader : public TraceSource {
       body();
     } catch (const LineError& e) {
       std::string message = e.message;
-      if (!had_newline_) message = "truncated record (file ends mid-line): " + message;
+      if (!had_newline_ && !e.about_bytes) message = "truncated record (file ends mid-line): " + message;
       throw InputError(path_, LineNumber(), e.key, message);
     }
   }
@@ -345,9 +347,8 @@ class TraceFileReader : public TraceSource {
         break;
       }
       if (line_.size() == kTraceMaxLineChars) {
-        had_newline_ = true;  // the line is too long, not truncated
         throw LineError{"", "line longer than " + std::to_string(kTraceMaxLineChars) +
-                                " characters"};
+                                " characters", true};
       }
       line_.push_back(char(c));
     }
