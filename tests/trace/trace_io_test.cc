@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "common/error.h"
+#include "config/config_loader.h"
 #include "model/trace_builder.h"
 #include "trace/trace_format.h"
 #include "trace/trace_reader.h"
@@ -168,6 +169,16 @@ TEST_F(TraceIo, ExampleTraceInRepositoryRoundTrips) {
   EXPECT_EQ(source->header().model, "wren-0.7b");
   EXPECT_EQ(source->header().workload.decode_tokens, 4);
   EXPECT_EQ(WriteToString(*source), content);
+}
+
+TEST_F(TraceIo, ExampleTraceIsCurrentForItsModelFile) {
+  // traces/wren-0.7b-decode4.trace must be what the builder makes from
+  // models/wren-0.7b.yaml; if either changes, regenerate the trace.
+  const std::string path = kSourceDir + "/traces/wren-0.7b-decode4.trace";
+  auto stored = OpenTraceFile(path);
+  const ModelConfig model = LoadModelFile(kSourceDir + "/models/wren-0.7b.yaml");
+  auto built = BuildTrace(model, stored->header().workload);
+  EXPECT_EQ(WriteToString(*built), WriteToString(*stored));
 }
 
 TEST_F(TraceIo, MissingFileIsNamed) {
