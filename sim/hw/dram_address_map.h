@@ -1,0 +1,62 @@
+// Decodes a byte address into the DRAM coordinates of the burst holding it.
+//
+// The address is first divided by the burst size (requests are whole,
+// aligned bursts), then read as a mixed-radix number whose digits are the
+// fields of DramConfig::address_map, most significant first. Radixes:
+// channel = channels, bank group = bank_groups, bank = banks_per_group,
+// column = row_bytes / burst_bytes (bursts per row). The row takes all the
+// remaining high bits, so it must be the most significant field. When every
+// radix is a power of two the decode is shifts and masks; otherwise it falls
+// back to division.
+#pragma once
+
+#include <array>
+#include <cstdint>
+
+#include "config/arch_config.h"
+
+namespace tritsim {
+
+// Where one burst lives.
+struct DramAddress {
+  uint64_t row = 0;
+  uint32_t channel = 0;
+  uint32_t bank_group = 0;
+  uint32_t bank = 0;    // bank inside its group, [0, banks_per_group)
+  uint32_t column = 0;  // burst index inside the row, [0, row_bytes / burst_bytes)
+};
+
+class DramAddressMap {
+ public:
+  // Throws tritsim::Error (kBadInput) naming dram.address_map if the map does
+  // not list each field exactly once, if the row is not the most significant
+  // field, or if row_bytes is not a whole number of bursts.
+  explicit DramAddressMap(const DramConfig& dram);
+
+  DramAddress Decode(uint64_t byte_address) const;
+
+  // Inverse of Decode: the first byte of the burst at `where`.
+  // REQUIRES: every field of `where` inside its range.
+  uint64_t Encode(const DramAddress& where) const;
+
+  uint64_t burst_bytes() const { return burst_bytes_; }
+
+ private:
+  static constexpr int kFields = 5;
+
+  uint64_t RadixOf(const DramConfig& dram, AddressField field) const;
+  // Digit `field` of a burst index.
+  uint64_t Digit(uint64_t burst, AddressField field) const;
+
+  uint64_t burst_bytes_ = 64;
+  unsigned burst_shift_ = 6;
+  bool power_of_two_ = true;
+  // Indexed by AddressField. The row's radix is unbounded (0 means "all the
+  // remaining bits"); below_ is the product of the radixes of the less
+  // significant fields, shift_ its log2 (power-of-two maps only).
+  std::array<uint64_t, kFields> radix_{};
+  std::array<uint64_t, kFields> below_{};
+  std::array<unsigned, kFields> shift_{};
+};
+
+}  // namespace tritsim

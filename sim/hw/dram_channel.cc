@@ -1,0 +1,227 @@
+#include "hw/dram_channel.h"
+
+#include <algorithm>
+#include <cmath>
+
+#include "common/error.h"
+
+namespace tritsim {
+namespace {
+
+constexpr double kPsPerNs = 1000.0;
+constexpr uint64_t kDdrTransfersPerCycle = 2;  // double data rate
+
+uint64_t Max(uint64_t a, uint64_t b) { return a > b ? a : b; }
+
+}  // namespace
+
+DramChannel::TimingPs DramChannel::ToPs(const DramTiming& t, uint64_t tck_ps) {
+  auto ps = [tck_ps](int64_t cycles) { return static_cast<uint64_t>(cycles) * tck_ps; };
+  TimingPs p{};
+  p.CL = ps(t.CL);
+  p.CWL = ps(t.CWL);
+  p.tRCD = ps(t.tRCD);
+  p.tRP = ps(t.tRP);
+  p.tRAS = ps(t.tRAS);
+  p.tRC = ps(t.tRC);
+  p.tCCD_S = ps(t.tCCD_S);
+  p.tCCD_L = ps(t.tCCD_L);
+  p.tRRD_S = ps(t.tRRD_S);
+  p.tRRD_L = ps(t.tRRD_L);
+  p.tFAW = ps(t.tFAW);
+  p.tWR = ps(t.tWR);
+  p.tWTR_S = ps(t.tWTR_S);
+  p.tWTR_L = ps(t.tWTR_L);
+  p.tRTP = ps(t.tRTP);
+  p.tRFC = ps(t.tRFC);
+  p.tREFI = ps(t.tREFI);
+  p.burst = ps(t.burst_length) / kDdrTransfersPerCycle;
+  p.rd_to_wr = ps(kReadToWriteTurnaroundCycles);
+  return p;
+}
+
+DramChannel::DramChannel(const DramConfig& dram) {
+  if (dram.bank_groups < 1 || dram.bank_groups > kMaxBankGroups || dram.banks_per_group < 1)
+    throw InputError("architecture", 0, "dram.bank_groups",
+                     "bank organisation out of range (1..16 groups, >= 1 bank per group)");
+  tck_ps_ = static_cast<uint64_t>(std::llround(dram.timing.tCK_ns * kPsPerNs));
+  if (tck_ps_ == 0) throw InputError("architecture", 0, "dram.timing.tCK_ns", "rounds to 0 ps");
+  t_ = ToPs(dram.timing, tck_ps_);
+  closed_page_ = dram.page_policy == PagePolicy::kClosed;
+  banks_per_group_ = static_cast<uint32_t>(dram.banks_per_group);
+  banks_.assign(static_cast<size_t>(dram.bank_groups * dram.banks_per_group), Bank{});
+  capacity_ = static_cast<size_t>(std::max<int64_t>(1, dram.queue_depth));
+  queue_.assign(capacity_, DramRequest{});
+  next_refresh_ps_ = t_.tREFI;
+}
+
+uint64_t DramChannel::AlignUp(uint64_t ps) const {
+  const uint64_t rem = ps % tck_ps_;
+  return rem == 0 ? ps : ps + (tck_ps_ - rem);
+}
+
+void DramChannel::Enqueue(const DramRequest& request) {
+  queue_[Slot(queued_)] = request;
+  ++queued_;
+}
+
+uint64_t DramChannel::NextPickPs() const {
+  if (queued_ == 0) return kNever;
+  const uint64_t oldest = queue_[head_].arrival_ps;
+  // pick_ok_ps_ is on a clock edge; only an arrival can be off the grid.
+  return oldest <= pick_ok_ps_ ? pick_ok_ps_ : AlignUp(oldest);
+}
+
+bool DramChannel::IsReadyHit(const DramRequest& r, uint64_t now_ps) const {
+  const Bank& b = banks_[r.bank];
+  return b.open_row == r.row && b.cas_ok_ps <= now_ps;
+}
+
+size_t DramChannel::ChooseFrFcfs(uint64_t now_ps) const {
+  for (size_t age = 0; age < queued_; ++age) {
+    if (IsReadyHit(At(age), now_ps)) return age;
+  }
+  return 0;  // no ready row hit: the oldest
+}
+
+void DramChannel::RemoveAt(size_t age) {
+  // Keep arrival order: shift the older entries up by one.
+  for (size_t a = age; a > 0; --a) queue_[Slot(a)] = queue_[Slot(a - 1)];
+  head_ = Slot(1);
+  --queued_;
+}
+
+uint64_t DramChannel::PlanAct(const DramRequest& r, uint64_t after_ps) const {
+  uint64_t act = Max(after_ps, banks_[r.bank].act_ok_ps);
+  act = Max(act, act_any_ok_ps_);
+  act = Max(act, act_group_ok_ps_[r.bank_group]);
+  return Max(act, faw_ok_ps_[faw_next_]);
+}
+
+uint64_t DramChannel::PlanCas(const DramRequest& r, uint64_t after_ps) const {
+  uint64_t cas = Max(after_ps, cas_any_ok_ps_);
+  cas = Max(cas, cas_group_ok_ps_[r.bank_group]);
+  if (r.is_write) {
+    if (cas + t_.CWL < wr_data_ok_ps_) cas = wr_data_ok_ps_ - t_.CWL;
+    return cas;
+  }
+  cas = Max(cas, rd_after_wr_any_ok_ps_);
+  cas = Max(cas, rd_after_wr_group_ok_ps_[r.bank_group]);
+  if (cas + t_.CL < rd_data_ok_ps_) cas = rd_data_ok_ps_ - t_.CL;
+  return cas;
+}
+
+DramCommandTimes DramChannel::Plan(const DramRequest& r, uint64_t now_ps) const {
+  const Bank& b = banks_[r.bank];
+  DramCommandTimes t;
+  uint64_t cas_after = Max(now_ps, b.cas_ok_ps);
+  if (b.open_row != r.row) {
+    uint64_t act_after = now_ps;
+    if (b.open_row != kNoRow) {
+      t.pre_ps = Max(now_ps, b.pre_ok_ps);
+      act_after = t.pre_ps + t_.tRP;
+    }
+    t.act_ps = PlanAct(r, act_after);
+    cas_after = t.act_ps + t_.tRCD;
+  }
+  t.cas_ps = PlanCas(r, cas_after);
+  t.done_ps = t.cas_ps + (r.is_write ? t_.CWL : t_.CL) + t_.burst;
+  return t;
+}
+
+void DramChannel::CountKind(const DramRequest& r) {
+  const uint64_t open = banks_[r.bank].open_row;
+  if (open == r.row) {
+    ++stats_.row_hits;
+  } else if (open == kNoRow) {
+    ++stats_.row_misses;
+  } else {
+    ++stats_.row_conflicts;
+  }
+  ++(r.is_write ? stats_.writes : stats_.reads);
+  stats_.busy_ps += t_.burst;
+}
+
+void DramChannel::CommitAct(const DramRequest& r, uint64_t act_ps) {
+  Bank& b = banks_[r.bank];
+  b.open_row = r.row;
+  b.cas_ok_ps = act_ps + t_.tRCD;
+  b.pre_ok_ps = act_ps + t_.tRAS;
+  b.act_ok_ps = act_ps + t_.tRC;
+  act_any_ok_ps_ = act_ps + t_.tRRD_S;
+  act_group_ok_ps_[r.bank_group] = act_ps + t_.tRRD_L;
+  faw_ok_ps_[faw_next_] = act_ps + t_.tFAW;
+  faw_next_ = (faw_next_ + 1) % kFawActs;
+  ++stats_.activates;
+}
+
+void DramChannel::CommitCas(const DramRequest& r, const DramCommandTimes& t) {
+  Bank& b = banks_[r.bank];
+  cas_any_ok_ps_ = t.cas_ps + t_.tCCD_S;
+  cas_group_ok_ps_[r.bank_group] = t.cas_ps + t_.tCCD_L;
+  if (r.is_write) {
+    b.pre_ok_ps = Max(b.pre_ok_ps, t.done_ps + t_.tWR);
+    rd_after_wr_any_ok_ps_ = t.done_ps + t_.tWTR_S;
+    rd_after_wr_group_ok_ps_[r.bank_group] = t.done_ps + t_.tWTR_L;
+    rd_data_ok_ps_ = t.done_ps;
+    wr_data_ok_ps_ = t.done_ps;
+  } else {
+    b.pre_ok_ps = Max(b.pre_ok_ps, t.cas_ps + t_.tRTP);
+    rd_data_ok_ps_ = t.done_ps;
+    wr_data_ok_ps_ = t.done_ps + t_.rd_to_wr;
+  }
+  if (closed_page_) {  // auto-precharge as soon as allowed
+    b.act_ok_ps = Max(b.act_ok_ps, b.pre_ok_ps + t_.tRP);
+    b.open_row = kNoRow;
+  }
+}
+
+void DramChannel::Commit(const DramRequest& r, const DramCommandTimes& t) {
+  CountKind(r);
+  if (t.pre_ps != DramCommandTimes::kNoCommand) {
+    banks_[r.bank].open_row = kNoRow;
+  }
+  if (t.act_ps != DramCommandTimes::kNoCommand) CommitAct(r, t.act_ps);
+  CommitCas(r, t);
+  pick_ok_ps_ = std::min({t.pre_ps, t.act_ps, t.cas_ps});
+}
+
+void DramChannel::Refresh() {
+  uint64_t ref_ps = next_refresh_ps_;
+  for (Bank& b : banks_) {
+    uint64_t ready = b.act_ok_ps;
+    if (b.open_row != kNoRow) ready = Max(ready, Max(next_refresh_ps_, b.pre_ok_ps) + t_.tRP);
+    ref_ps = Max(ref_ps, ready);
+  }
+  const uint64_t end_ps = ref_ps + t_.tRFC;
+  for (Bank& b : banks_) {
+    b.open_row = kNoRow;
+    b.act_ok_ps = end_ps;
+  }
+  ++stats_.refreshes;
+  stats_.refresh_ps += t_.tRFC;
+  next_refresh_ps_ += t_.tREFI;
+}
+
+DramPick DramChannel::Pick() {
+  const uint64_t now_ps = NextPickPs();
+  while (now_ps >= next_refresh_ps_) Refresh();
+  size_t age = ChooseFrFcfs(now_ps);
+  DramCommandTimes times = Plan(At(age), now_ps);
+  while (std::min({times.pre_ps, times.act_ps, times.cas_ps}) >= next_refresh_ps_) {
+    Refresh();
+    age = ChooseFrFcfs(now_ps);
+    times = Plan(At(age), now_ps);
+  }
+  const DramRequest& r = At(age);
+  Commit(r, times);
+  DramPick pick{r.tag, times};
+  RemoveAt(age);
+  return pick;
+}
+
+void DramChannel::Finish(uint64_t end_ps) {
+  while (next_refresh_ps_ < end_ps) Refresh();
+}
+
+}  // namespace tritsim

@@ -1,0 +1,173 @@
+// One DRAM channel: bank groups, banks with open rows, JEDEC timing state,
+// all-bank refresh, and a first-ready / first-come-first-served scheduler
+// (FR-FCFS, Rixner et al., ISCA 2000) over a bounded queue.
+//
+// Plain C++, driven by the memory system's event loop (memory_system.cc),
+// which itself runs inside one DMA engine call: not thread-safe, no SystemC.
+// Times are integer picoseconds; every command issues on a DRAM clock edge.
+//
+// Timing model, per request (one burst):
+//  - ACT needs the bank precharged and tRP since its PRE, tRC since the
+//    bank's last ACT, tRRD_S / tRRD_L since the channel's last ACT in another
+//    / the same bank group, and at most four ACTs in any tFAW window.
+//  - CAS needs tRCD since ACT, tCCD_S / tCCD_L since the last CAS in another /
+//    the same bank group, a free data bus, and for a read tWTR_S / tWTR_L
+//    after the end of the last write data in another / the same bank group.
+//    Write data may start only kReadToWriteTurnaroundCycles after the end of
+//    read data (bus turnaround; common practice, about two tCK for DDR4).
+//  - PRE needs tRAS since ACT, tRTP since a read CAS, tWR after the end of
+//    write data.
+//  - Read data ends at CAS + CL + BL/2 tCK, write data at CAS + CWL + BL/2.
+//  - Open page: a row stays open until a request to another row of the bank
+//    needs it closed. Closed page: every access auto-precharges as early as
+//    tRAS / tRTP / tWR allow.
+//  - Refresh: an all-bank refresh is due every tREFI, the first at tREFI. A
+//    request whose first command would issue at or after the deadline waits
+//    for it; the refresh precharges all banks (respecting tRAS / tRTP / tWR),
+//    issues tRP later, blocks every bank for tRFC and leaves all rows closed.
+//    Deadlines stay on the tREFI grid even when one refresh slips.
+// Simplifications (documented, deliberate): the command bus is not modelled
+// (two commands may issue on the same edge); the scheduler commits to one
+// request at a time and looks for the next one when the committed request's
+// first command issues, so commands of one kind (ACT, CAS) issue in the
+// order requests were picked; refresh is never postponed or pulled in.
+#pragma once
+
+#include <array>
+#include <cstdint>
+#include <vector>
+
+#include "config/arch_config.h"
+#include "engine/run_result.h"
+
+namespace tritsim {
+
+// One burst waiting in a channel's queue.
+struct DramRequest {
+  uint64_t row = 0;
+  uint64_t arrival_ps = 0;  // when it entered the controller queue
+  uint32_t bank = 0;        // flat bank index: bank_group * banks_per_group + bank
+  uint32_t bank_group = 0;
+  uint32_t tag = 0;         // caller's handle, returned by Pick()
+  bool is_write = false;
+};
+
+// Command and data times of one scheduled request. kNoCommand where the
+// request needed no such command (a row hit has no PRE or ACT).
+struct DramCommandTimes {
+  static constexpr uint64_t kNoCommand = ~uint64_t{0};
+  uint64_t pre_ps = kNoCommand;
+  uint64_t act_ps = kNoCommand;
+  uint64_t cas_ps = 0;
+  uint64_t done_ps = 0;  // last data beat on the bus
+};
+
+// What Pick() scheduled.
+struct DramPick {
+  uint32_t tag = 0;
+  DramCommandTimes times;
+};
+
+class DramChannel {
+ public:
+  // Bus turnaround from the end of read data to the start of write data, nCK
+  // (common practice: about two clocks for DDR4 preamble and turnaround).
+  static constexpr int64_t kReadToWriteTurnaroundCycles = 2;
+  static constexpr uint64_t kNever = ~uint64_t{0};
+
+  // REQUIRES: `dram` validated (bank_groups <= kMaxBankGroups, positive
+  // timing). Allocates the bank table and the queue once, here.
+  explicit DramChannel(const DramConfig& dram);
+
+  bool HasRoom() const { return queued_ < capacity_; }
+  bool Empty() const { return queued_ == 0; }
+
+  // REQUIRES: HasRoom(); arrival_ps not earlier than any queued request's.
+  void Enqueue(const DramRequest& request);
+
+  // When the scheduler will make its next pick: kNever if the queue is
+  // empty, else the later of the last pick's first command and the oldest
+  // arrival, on a clock edge. Every queued request is eligible then.
+  uint64_t NextPickPs() const;
+
+  // Picks one queued request by FR-FCFS at NextPickPs() and schedules its
+  // commands (doing any refresh that falls due first). A request counts as
+  // first-ready if its row is open in its bank and ACT + tRCD has passed.
+  // REQUIRES: !Empty().
+  DramPick Pick();
+
+  // Does every refresh whose deadline is before end_ps.
+  void Finish(uint64_t end_ps);
+
+  const DramStats& stats() const { return stats_; }
+  uint64_t tck_ps() const { return tck_ps_; }
+
+  static constexpr int kMaxBankGroups = 16;
+
+ private:
+  static constexpr uint64_t kNoRow = ~uint64_t{0};
+  static constexpr size_t kFawActs = 4;  // ACTs allowed in one tFAW window (JESD79-4)
+
+  // Timing parameters converted to ps.
+  struct TimingPs {
+    uint64_t CL, CWL, tRCD, tRP, tRAS, tRC, tCCD_S, tCCD_L, tRRD_S, tRRD_L, tFAW, tWR;
+    uint64_t tWTR_S, tWTR_L, tRTP, tRFC, tREFI, burst, rd_to_wr;
+  };
+  // Earliest times, ps, at which the next command of each kind may issue to
+  // one bank. Stored as "allowed from" so that no state means time 0.
+  struct Bank {
+    uint64_t open_row = kNoRow;
+    uint64_t cas_ok_ps = 0;  // ACT + tRCD
+    uint64_t pre_ok_ps = 0;  // max(ACT + tRAS, read CAS + tRTP, write end + tWR)
+    uint64_t act_ok_ps = 0;  // max(PRE + tRP, ACT + tRC, end of refresh)
+  };
+
+  static TimingPs ToPs(const DramTiming& t, uint64_t tck_ps);
+  size_t ChooseFrFcfs(uint64_t now_ps) const;
+  bool IsReadyHit(const DramRequest& r, uint64_t now_ps) const;
+  DramCommandTimes Plan(const DramRequest& r, uint64_t now_ps) const;
+  uint64_t PlanAct(const DramRequest& r, uint64_t after_ps) const;
+  uint64_t PlanCas(const DramRequest& r, uint64_t after_ps) const;
+  void Commit(const DramRequest& r, const DramCommandTimes& t);
+  void CommitAct(const DramRequest& r, uint64_t act_ps);
+  void CommitCas(const DramRequest& r, const DramCommandTimes& t);
+  void CountKind(const DramRequest& r);
+  void Refresh();
+  void RemoveAt(size_t age);
+  size_t Slot(size_t age) const {
+    const size_t i = head_ + age;
+    return i >= capacity_ ? i - capacity_ : i;
+  }
+  const DramRequest& At(size_t age) const { return queue_[Slot(age)]; }
+  uint64_t AlignUp(uint64_t ps) const;
+
+  TimingPs t_{};
+  uint64_t tck_ps_ = 1;
+  bool closed_page_ = false;
+  uint32_t banks_per_group_ = 1;
+
+  std::vector<Bank> banks_;
+  // Channel-wide "allowed from" times, ps.
+  uint64_t act_any_ok_ps_ = 0;                     // last ACT + tRRD_S
+  std::array<uint64_t, kMaxBankGroups> act_group_ok_ps_{};  // last ACT in group + tRRD_L
+  std::array<uint64_t, kFawActs> faw_ok_ps_{};     // each of the last 4 ACTs + tFAW
+  size_t faw_next_ = 0;                            // oldest entry of faw_ok_ps_
+  uint64_t cas_any_ok_ps_ = 0;                     // last CAS + tCCD_S
+  std::array<uint64_t, kMaxBankGroups> cas_group_ok_ps_{};  // last CAS in group + tCCD_L
+  uint64_t rd_after_wr_any_ok_ps_ = 0;             // write data end + tWTR_S
+  std::array<uint64_t, kMaxBankGroups> rd_after_wr_group_ok_ps_{};  // + tWTR_L, same group
+  uint64_t rd_data_ok_ps_ = 0;                     // earliest start of read data
+  uint64_t wr_data_ok_ps_ = 0;                     // earliest start of write data
+  uint64_t next_refresh_ps_ = 0;                   // next refresh deadline
+  uint64_t pick_ok_ps_ = 0;                        // first command of the last pick
+
+  // Queue: a ring in arrival order (age 0 = oldest).
+  std::vector<DramRequest> queue_;
+  size_t capacity_ = 1;
+  size_t head_ = 0;
+  size_t queued_ = 0;
+
+  DramStats stats_;
+};
+
+}  // namespace tritsim
