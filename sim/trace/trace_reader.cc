@@ -87,9 +87,10 @@ std::vector<std::string_view> SplitWords(std::string_view line) {
 // The key=value fields of one record line, checked against the allowed keys.
 class Fields {
  public:
-  Fields(std::string record, const std::vector<std::string_view>& words,
-         std::vector<const char*> allowed)
-      : record_(std::move(record)), allowed_(std::move(allowed)) {
+  // `allowed` must outlive the Fields (the key lists below are static).
+  Fields(const char* record, const std::vector<std::string_view>& words,
+         const std::vector<const char*>& allowed)
+      : record_(record), allowed_(allowed) {
     for (size_t i = 1; i < words.size(); ++i) Add(words[i]);
   }
 
@@ -97,7 +98,7 @@ class Fields {
     for (const auto& [k, v] : fields_) {
       if (k == key) return v;
     }
-    throw LineError{Path(key), "missing field (" + record_ + " lines need " + AllowedKeys() + ")"};
+    throw LineError{Path(key), "missing field (" + std::string(record_) + " lines need " + AllowedKeys() + ")"};
   }
 
   // An integer in [min, max].
@@ -158,7 +159,7 @@ class Fields {
     return value;
   }
 
-  std::string Path(const char* key) const { return record_ + "." + key; }
+  std::string Path(const char* key) const { return std::string(record_) + "." + key; }
 
  private:
   void Add(std::string_view word) {
@@ -185,15 +186,16 @@ class Fields {
     return list;
   }
 
-  std::string record_;
-  std::vector<const char*> allowed_;
+  const char* record_;                       // record type, e.g. "op"
+  const std::vector<const char*>& allowed_;  // keys this record type takes
   std::vector<std::pair<std::string_view, std::string_view>> fields_;
 };
 
 // --------------------------------------------------------------- records ---
 
 WorkloadConfig ParseWorkload(const std::vector<std::string_view>& words) {
-  const Fields f("workload", words, {"prefill", "decode", "context", "batch"});
+  static const std::vector<const char*> kKeys = {"prefill", "decode", "context", "batch"};
+  const Fields f("workload", words, kKeys);
   WorkloadConfig w;
   w.prefill_tokens = f.Int("prefill", 0, kTraceMaxContext);
   w.decode_tokens = f.Int("decode", 0, kTraceMaxSteps);
@@ -203,7 +205,8 @@ WorkloadConfig ParseWorkload(const std::vector<std::string_view>& words) {
 }
 
 TraceStep ParseStep(const std::vector<std::string_view>& words) {
-  const Fields f("step", words, {"phase", "index", "tokens", "batch", "context"});
+  static const std::vector<const char*> kKeys = {"phase", "index", "tokens", "batch", "context"};
+  const Fields f("step", words, kKeys);
   TraceStep s;
   s.phase = f.Enum("phase", ParsePhase, AllowedPhases());
   s.step = f.Int("index", 0, kTraceMaxSteps);
@@ -245,10 +248,11 @@ void CheckOpConsistency(const TraceOp& op) {
 
 // Parses an op line; phase and step come from the enclosing step.
 TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& step) {
-  const Fields f("op", words,
-                 {"layer", "name", "kind", "tensor", "weights", "m", "n", "k", "heads",
-                  "kv_heads", "head_dim", "context", "causal", "act_bits", "kv_bits",
-                  "zero_fraction"});
+  static const std::vector<const char*> kKeys = {
+      "layer",    "name",     "kind",    "tensor", "weights",  "m",       "n",
+      "k",        "heads",    "kv_heads", "head_dim", "context", "causal", "act_bits",
+      "kv_bits",  "zero_fraction"};
+  const Fields f("op", words, kKeys);
   TraceOp op;
   op.phase = step.phase;
   op.step = step.step;
