@@ -9,8 +9,8 @@ namespace {
 // Shapes of one step, fixed while its ops are emitted.
 struct StepShape {
   TraceStep step;
-  int64_t rows = 0;            // m of per-token ops: batch x tokens
-  int64_t keys = 0;            // keys attended by the last row: context + tokens
+  int64_t rows = 0;  // m of per-token ops: batch x tokens
+  int64_t keys = 0;  // keys attended by the last row: context + tokens
 };
 
 // The op every other op of a step starts from: phase, step, precisions.
@@ -53,8 +53,8 @@ TraceOp GemmOp(const ModelConfig& model, const StepShape& shape, const char* nam
 
 // An attention op over the cache. Per head: scores are [m x head_dim] x
 // [head_dim x keys], values are [m x keys] x [keys x head_dim].
-TraceOp AttentionOp(const ModelConfig& model, const StepShape& shape, const char* name,
-                    OpKind kind, int64_t n, int64_t k) {
+TraceOp AttentionOp(const ModelConfig& model, const StepShape& shape, const char* name, OpKind kind,
+                    int64_t n, int64_t k) {
   TraceOp op = BaseOp(model, shape, name, kind, n);
   op.k = k;
   op.heads = model.heads;

@@ -14,11 +14,16 @@ struct NameEntry {
 };
 
 constexpr NameEntry<OpKind> kOpKindNames[] = {
-    {OpKind::kEmbed, "embed"},           {OpKind::kNorm, "norm"},
-    {OpKind::kQuantize, "quantize"},     {OpKind::kGemm, "gemm"},
-    {OpKind::kRope, "rope"},             {OpKind::kKvAppend, "kv_append"},
-    {OpKind::kAttnScores, "attn_scores"}, {OpKind::kSoftmax, "softmax"},
-    {OpKind::kAttnValues, "attn_values"}, {OpKind::kActivation, "activation"},
+    {OpKind::kEmbed, "embed"},
+    {OpKind::kNorm, "norm"},
+    {OpKind::kQuantize, "quantize"},
+    {OpKind::kGemm, "gemm"},
+    {OpKind::kRope, "rope"},
+    {OpKind::kKvAppend, "kv_append"},
+    {OpKind::kAttnScores, "attn_scores"},
+    {OpKind::kSoftmax, "softmax"},
+    {OpKind::kAttnValues, "attn_values"},
+    {OpKind::kActivation, "activation"},
     {OpKind::kResidual, "residual"},
 };
 
@@ -28,9 +33,9 @@ constexpr NameEntry<Phase> kPhaseNames[] = {
 };
 
 constexpr NameEntry<TensorClass> kTensorClassNames[] = {
-    {TensorClass::kNone, "none"},           {TensorClass::kAttention, "attention"},
-    {TensorClass::kFfn, "ffn"},             {TensorClass::kEmbedding, "embedding"},
-    {TensorClass::kHead, "head"},           {TensorClass::kNorm, "norm"},
+    {TensorClass::kNone, "none"}, {TensorClass::kAttention, "attention"},
+    {TensorClass::kFfn, "ffn"},   {TensorClass::kEmbedding, "embedding"},
+    {TensorClass::kHead, "head"}, {TensorClass::kNorm, "norm"},
 };
 
 constexpr NameEntry<WeightFormat> kWeightFormatNames[] = {

@@ -16,8 +16,8 @@ namespace {
 
 // A problem found in one line; the reader adds the file and line number.
 struct LineError {
-  std::string key;      // e.g. "op.m"; empty when the line as a whole is bad
-  std::string message;  // bad value and what is allowed
+  std::string key;           // e.g. "op.m"; empty when the line as a whole is bad
+  std::string message;       // bad value and what is allowed
   bool about_bytes = false;  // bad bytes or length: never reported as a truncated record
 };
 
@@ -32,10 +32,14 @@ size_t Utf8SequenceLength(std::string_view s, size_t i) {
   size_t length = 0;
   unsigned char min_second = 0x80, max_second = 0xbf;
   if (lead < 0x80) return 1;
-  if (lead >= 0xc2 && lead <= 0xdf) length = 2;
-  else if (lead >= 0xe0 && lead <= 0xef) length = 3;
-  else if (lead >= 0xf0 && lead <= 0xf4) length = 4;
-  else return 0;
+  if (lead >= 0xc2 && lead <= 0xdf)
+    length = 2;
+  else if (lead >= 0xe0 && lead <= 0xef)
+    length = 3;
+  else if (lead >= 0xf0 && lead <= 0xf4)
+    length = 4;
+  else
+    return 0;
   if (lead == 0xe0) min_second = 0xa0;  // no overlong forms
   if (lead == 0xed) max_second = 0x9f;  // no surrogates
   if (lead == 0xf0) min_second = 0x90;
@@ -56,8 +60,9 @@ void CheckText(std::string_view line) {
     const std::string column = std::to_string(i + 1);
     if (c == 0) throw LineError{"", "NUL byte at column " + column + " (binary data?)", true};
     if ((c < ' ' && c != '\t') || c == 0x7f) {
-      throw LineError{"", "control byte " + std::to_string(c) + " at column " + column +
-                              " (binary data?)", true};
+      throw LineError{
+          "", "control byte " + std::to_string(c) + " at column " + column + " (binary data?)",
+          true};
     }
     const size_t length = Utf8SequenceLength(line, i);
     if (length == 0) {
@@ -98,7 +103,8 @@ class Fields {
     for (const auto& [k, v] : fields_) {
       if (k == key) return v;
     }
-    throw LineError{Path(key), "missing field (" + std::string(record_) + " lines need " + AllowedKeys() + ")"};
+    throw LineError{
+        Path(key), "missing field (" + std::string(record_) + " lines need " + AllowedKeys() + ")"};
   }
 
   // An integer in [min, max].
@@ -143,7 +149,8 @@ class Fields {
     const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), value);
     const bool whole = ec == std::errc() && end == text.data() + text.size();
     if (!whole || !(value >= 0.0 && value < 1.0)) {
-      throw LineError{Path(key), "'" + std::string(text) + "' is not allowed, allowed a number in [0, 1)"};
+      throw LineError{Path(key),
+                      "'" + std::string(text) + "' is not allowed, allowed a number in [0, 1)"};
     }
     return value;
   }
@@ -171,8 +178,7 @@ class Fields {
     bool known = false;
     for (const char* a : allowed_) known = known || key == a;
     if (!known) {
-      throw LineError{Path(std::string(key).c_str()),
-                      "unknown field, allowed " + AllowedKeys()};
+      throw LineError{Path(std::string(key).c_str()), "unknown field, allowed " + AllowedKeys()};
     }
     for (const auto& field : fields_) {
       if (field.first == key) throw LineError{Path(std::string(key).c_str()), "field given twice"};
@@ -226,8 +232,8 @@ void CheckOpConsistency(const TraceOp& op) {
     throw LineError{"op.name", "'" + op.name + "' contains '=' or '#'"};
   }
   if (op.kind == OpKind::kGemm && op.k < 1) {
-    throw LineError{"op.k", "0 is not allowed for a gemm, allowed 1 to " +
-                                std::to_string(kTraceMaxDim)};
+    throw LineError{"op.k",
+                    "0 is not allowed for a gemm, allowed 1 to " + std::to_string(kTraceMaxDim)};
   }
   if (op.kind == OpKind::kGemm &&
       (op.tensor == TensorClass::kNone || op.tensor == TensorClass::kNorm)) {
@@ -240,8 +246,8 @@ void CheckOpConsistency(const TraceOp& op) {
       throw LineError{"op", "an attention op needs heads, kv_heads, head_dim and context >= 1"};
     }
     if (op.heads % op.kv_heads != 0) {
-      throw LineError{"op.kv_heads", std::to_string(op.kv_heads) + " does not divide heads=" +
-                                         std::to_string(op.heads)};
+      throw LineError{"op.kv_heads", std::to_string(op.kv_heads) +
+                                         " does not divide heads=" + std::to_string(op.heads)};
     }
   }
 }
@@ -249,9 +255,9 @@ void CheckOpConsistency(const TraceOp& op) {
 // Parses an op line; phase and step come from the enclosing step.
 TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& step) {
   static const std::vector<const char*> kKeys = {
-      "layer",    "name",     "kind",    "tensor", "weights",  "m",       "n",
-      "k",        "heads",    "kv_heads", "head_dim", "context", "causal", "act_bits",
-      "kv_bits",  "zero_fraction"};
+      "layer",  "name",     "kind",    "tensor",       "weights",  "m",
+      "n",      "k",        "heads",   "kv_heads",     "head_dim", "context",
+      "causal", "act_bits", "kv_bits", "zero_fraction"};
   const Fields f("op", words, kKeys);
   TraceOp op;
   op.phase = step.phase;
@@ -329,7 +335,8 @@ class TraceFileReader : public TraceSource {
       body();
     } catch (const LineError& e) {
       std::string message = e.message;
-      if (!had_newline_ && !e.about_bytes) message = "truncated record (file ends mid-line): " + message;
+      if (!had_newline_ && !e.about_bytes)
+        message = "truncated record (file ends mid-line): " + message;
       throw InputError(path_, LineNumber(), e.key, message);
     }
   }
@@ -351,8 +358,8 @@ class TraceFileReader : public TraceSource {
         break;
       }
       if (line_.size() == kTraceMaxLineChars) {
-        throw LineError{"", "line longer than " + std::to_string(kTraceMaxLineChars) +
-                                " characters", true};
+        throw LineError{
+            "", "line longer than " + std::to_string(kTraceMaxLineChars) + " characters", true};
       }
       line_.push_back(char(c));
     }
@@ -422,8 +429,8 @@ class TraceFileReader : public TraceSource {
     if (type == "model" || type == "workload") {
       throw LineError{std::string(type), "header line after the first step"};
     }
-    throw LineError{"", "unknown record '" + std::string(type) +
-                            "', allowed step | op | end (or # comments)"};
+    throw LineError{
+        "", "unknown record '" + std::string(type) + "', allowed step | op | end (or # comments)"};
   }
 
   // Prefill: only as the first step, index 0, header's prompt length.
@@ -438,12 +445,11 @@ class TraceFileReader : public TraceSource {
       CheckPrefillStep(s);
     } else if (s.step != decode_steps_) {
       throw LineError{"step.index", "decode step " + std::to_string(s.step) +
-                                        " out of order, expected " +
-                                        std::to_string(decode_steps_)};
+                                        " out of order, expected " + std::to_string(decode_steps_)};
     } else if (decode_steps_ >= w.decode_tokens) {
-      throw LineError{"step.index", "decode step " + std::to_string(s.step) +
-                                        " beyond the header's decode=" +
-                                        std::to_string(w.decode_tokens)};
+      throw LineError{"step.index",
+                      "decode step " + std::to_string(s.step) +
+                          " beyond the header's decode=" + std::to_string(w.decode_tokens)};
     } else {
       ++decode_steps_;
     }
@@ -455,12 +461,13 @@ class TraceFileReader : public TraceSource {
     const WorkloadConfig& w = header_.workload;
     if (in_step_) throw LineError{"step.phase", "prefill allowed only as the first step"};
     if (s.step != 0) {
-      throw LineError{"step.index", std::to_string(s.step) + " is not allowed, a prefill is step 0"};
+      throw LineError{"step.index",
+                      std::to_string(s.step) + " is not allowed, a prefill is step 0"};
     }
     if (s.tokens != w.prefill_tokens) {
-      throw LineError{"step.tokens", std::to_string(s.tokens) +
-                                         " differs from the header's prefill=" +
-                                         std::to_string(w.prefill_tokens)};
+      throw LineError{"step.tokens",
+                      std::to_string(s.tokens) +
+                          " differs from the header's prefill=" + std::to_string(w.prefill_tokens)};
     }
     saw_prefill_ = true;
   }
@@ -490,12 +497,12 @@ class TraceFileReader : public TraceSource {
   std::string line_;                     // current line, without '\n'
   std::vector<std::string_view> words_;  // words of line_
   int64_t line_number_ = 0;
-  bool had_newline_ = true;              // line_ ended with '\n'
-  bool in_step_ = false;                 // a step line has been read
-  TraceStep step_;                       // the current step
-  int64_t decode_steps_ = 0;             // decode steps read so far
+  bool had_newline_ = true;   // line_ ended with '\n'
+  bool in_step_ = false;      // a step line has been read
+  TraceStep step_;            // the current step
+  int64_t decode_steps_ = 0;  // decode steps read so far
   bool saw_prefill_ = false;
-  bool ended_ = false;                   // the 'end' line has been read
+  bool ended_ = false;  // the 'end' line has been read
 };
 
 }  // namespace

@@ -103,9 +103,8 @@ void CheckOpInStep(const TraceOp& op, const TraceStep* step) {
   }
   if (op.phase != step->phase || op.step != step->step) {
     throw Error(ExitCode::kInternal, "trace writer: op '" + op.name + "' claims " +
-                                         PhaseName(op.phase) + " step " +
-                                         std::to_string(op.step) + " inside " +
-                                         PhaseName(step->phase) + " step " +
+                                         PhaseName(op.phase) + " step " + std::to_string(op.step) +
+                                         " inside " + PhaseName(step->phase) + " step " +
                                          std::to_string(step->step));
   }
 }

@@ -124,7 +124,7 @@ TEST(ModelStats, WeightBytesFollowPackingAndPrecision) {
   EXPECT_DOUBLE_EQ(s.weight_bytes_two_bit.ffn, p.ffn * 0.25);  // 2 bits
   EXPECT_DOUBLE_EQ(s.weight_bytes_base3.embedding, p.embedding * 2.0);
   EXPECT_DOUBLE_EQ(s.weight_bytes_base3.head, p.head * 1.0);
-  EXPECT_DOUBLE_EQ(s.weight_bytes_base3.norm, p.norm * 2.0);   // norm_bits 16
+  EXPECT_DOUBLE_EQ(s.weight_bytes_base3.norm, p.norm * 2.0);  // norm_bits 16
   EXPECT_DOUBLE_EQ(s.weight_bytes_int8.attention, p.attention);
   EXPECT_DOUBLE_EQ(s.weight_bytes_fp16.total() - s.weight_bytes_fp16.norm,
                    2.0 * (p.total() - p.norm));

@@ -13,10 +13,10 @@ namespace {
 
 // Ops of a decoder block in trace order (docs/trace-format.md).
 const std::vector<std::string> kGatedBlock = {
-    "attn.norm",   "attn.quant",     "attn.qkv",      "attn.rope",     "attn.kv_append",
-    "attn.scores", "attn.softmax",   "attn.values",   "attn.out_quant", "attn.out",
-    "attn.residual", "ffn.norm",     "ffn.quant",     "ffn.gate_up",   "ffn.act",
-    "ffn.down_quant", "ffn.down",    "ffn.residual"};
+    "attn.norm",      "attn.quant",   "attn.qkv",    "attn.rope",      "attn.kv_append",
+    "attn.scores",    "attn.softmax", "attn.values", "attn.out_quant", "attn.out",
+    "attn.residual",  "ffn.norm",     "ffn.quant",   "ffn.gate_up",    "ffn.act",
+    "ffn.down_quant", "ffn.down",     "ffn.residual"};
 
 // A small grouped-query model: 8 query heads share 2 KV heads.
 ModelConfig SmallModel() {
@@ -105,9 +105,9 @@ TEST(TraceBuilder, FusedQkvWidthFollowsGroupedQueryHeads) {
   const Drained d = Drain(m, Workload(0, 1, 0, 4));
   const TraceOp& qkv = Find(d.ops[0], "attn.qkv", 1);
   EXPECT_EQ(qkv.kind, OpKind::kGemm);
-  EXPECT_EQ(qkv.m, 4);                  // batch x 1 token
-  EXPECT_EQ(qkv.k, 256);                // width
-  EXPECT_EQ(qkv.n, (8 + 2 * 2) * 32);   // q heads plus k and v of the KV heads
+  EXPECT_EQ(qkv.m, 4);                 // batch x 1 token
+  EXPECT_EQ(qkv.k, 256);               // width
+  EXPECT_EQ(qkv.n, (8 + 2 * 2) * 32);  // q heads plus k and v of the KV heads
   EXPECT_EQ(Find(d.ops[0], "attn.rope", 1).n, (8 + 2) * 32);
   EXPECT_EQ(Find(d.ops[0], "attn.kv_append", 1).n, 2 * 2 * 32);
   const TraceOp& out = Find(d.ops[0], "attn.out", 1);
