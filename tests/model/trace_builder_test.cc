@@ -204,6 +204,25 @@ TEST(TraceBuilder, GemmWeightsAddUpToModelParameters) {
   EXPECT_DOUBLE_EQ(weights[TensorClass::kHead], s.parameters.head);
 }
 
+TEST(TraceBuilder, DecodeWorkMatchesModelStatsOpsPerToken) {
+  // Cross-check with ComputeModelStats: at batch 1, the GEMMs of a decode
+  // step do 2 m k n ops (one multiply-equivalent plus add per weight use,
+  // common practice), and q.k plus p.v add 2 x 2 x heads x head_dim per key.
+  const ModelConfig m = SmallModel();
+  const int64_t context = 37;
+  const Drained d = Drain(m, Workload(0, 1, context, 1));
+  double gemm_ops = 0.0, attention_ops = 0.0;
+  for (const TraceOp& op : d.ops[0]) {
+    if (op.kind == OpKind::kGemm) gemm_ops += 2.0 * double(op.m * op.k * op.n);
+    if (op.kind == OpKind::kAttnScores || op.kind == OpKind::kAttnValues) {
+      attention_ops += 2.0 * double(op.heads * op.m * op.n * op.k);
+    }
+  }
+  const ModelStats s = ComputeModelStats(m);
+  EXPECT_DOUBLE_EQ(gemm_ops, s.ops_per_token);
+  EXPECT_DOUBLE_EQ(attention_ops, s.attention_ops_per_context_token * double(context + 1));
+}
+
 TEST(TraceBuilder, HundredThousandDecodeStepsStream) {
   // The generator holds one step's templates; draining a long run only
   // counts records (memory use is not measured, the design is the check).
