@@ -231,18 +231,22 @@ std::string ReadConfigFile(const std::string& path) {
 }
 
 int EditDistance(const std::string& a, const std::string& b) {
-  std::vector<int> row(b.size() + 1);
-  for (size_t j = 0; j <= b.size(); ++j) row[j] = static_cast<int>(j);
+  // Optimal string alignment: insertions, deletions, substitutions and
+  // swaps of neighbours each cost 1 (a swap is the commonest typo).
+  const size_t n = b.size();
+  std::vector<std::vector<int>> d(a.size() + 1, std::vector<int>(n + 1));
+  for (size_t i = 0; i <= a.size(); ++i) d[i][0] = static_cast<int>(i);
+  for (size_t j = 0; j <= n; ++j) d[0][j] = static_cast<int>(j);
   for (size_t i = 1; i <= a.size(); ++i) {
-    int diagonal = row[0];
-    row[0] = static_cast<int>(i);
-    for (size_t j = 1; j <= b.size(); ++j) {
-      const int substitute = diagonal + (a[i - 1] == b[j - 1] ? 0 : 1);
-      diagonal = row[j];
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, substitute});
+    for (size_t j = 1; j <= n; ++j) {
+      const int cost = a[i - 1] == b[j - 1] ? 0 : 1;
+      d[i][j] = std::min({d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost});
+      if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1]) {
+        d[i][j] = std::min(d[i][j], d[i - 2][j - 2] + 1);
+      }
     }
   }
-  return row[b.size()];
+  return d[a.size()][n];
 }
 
 std::string NearestWord(const std::string& word, const std::vector<std::string>& candidates) {
@@ -455,7 +459,7 @@ void Section::ReadIntChoice(const std::string& key, const std::vector<int64_t>& 
   const std::string text = PlainScalar(*e, expected);
   int64_t v = 0;
   if (!ParseInt(text, v) || std::find(allowed.begin(), allowed.end(), v) == allowed.end()) {
-    FailAt(key, "must be " + expected + ", got " + ShowValue(e->value));
+    FailAt(key, "must be " + expected + "; got " + ShowValue(e->value));
   }
   field = v;
 }

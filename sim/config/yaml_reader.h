@@ -41,7 +41,8 @@ struct Schema {
 // kMaxYamlBytes, "PATH: file is larger than 1 MiB ...".
 std::string ReadConfigFile(const std::string& path);
 
-// Levenshtein distance, for "did you mean" suggestions.
+// Edit distance (optimal string alignment: a swap of neighbours costs 1),
+// for "did you mean" suggestions.
 int EditDistance(const std::string& a, const std::string& b);
 
 // The candidate nearest to `word`, or "" if none is plausibly meant.
