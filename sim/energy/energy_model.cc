@@ -23,9 +23,9 @@ double U(uint64_t count) { return static_cast<double>(count); }
 double ArrayProductsPj(const TreeArrayConfig& array, const EnergyTable& t, const EventCounts& ev) {
   switch (array.kind) {
     case ArrayKind::kTernary: {
-      const uint64_t paid =
-          array.zero_gating ? ev.weight_uses - std::min(ev.weight_uses_zero, ev.weight_uses)
-                            : ev.weight_uses;
+      const uint64_t paid = array.zero_gating
+                                ? ev.weight_uses - std::min(ev.weight_uses_zero, ev.weight_uses)
+                                : ev.weight_uses;
       return U(paid) * t.pj("int8_add");
     }
     case ArrayKind::kInt8Mac:
@@ -82,8 +82,7 @@ double LeakageJoules(const ArchConfig& arch, const EnergyTable& t, const RunResu
 
 double AccumulatorAddPj(const EnergyTable& table, int accumulator_bits) {
   if (accumulator_bits < kMinAccumulatorBits || accumulator_bits > kMaxAccumulatorBits) {
-    throw Error(ExitCode::kBadInput, "array.accumulator_bits: " +
-                                         std::to_string(accumulator_bits) +
+    throw Error(ExitCode::kBadInput, "array.accumulator_bits: " + std::to_string(accumulator_bits) +
                                          " not allowed; must be in [8, 64]");
   }
   if (accumulator_bits <= 8) return table.pj("int8_add");

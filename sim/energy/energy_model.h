@@ -40,8 +40,8 @@ struct EnergyBreakdown {
   double leakage_joules = 0.0;     // static power over the simulated time, J
 
   // Detail, not added again into the total.
-  double array_joules = 0.0;       // part of arithmetic_joules spent in the array, J
-  double vector_joules = 0.0;      // part of arithmetic_joules spent in the vector unit, J
+  double array_joules = 0.0;          // part of arithmetic_joules spent in the array, J
+  double vector_joules = 0.0;         // part of arithmetic_joules spent in the vector unit, J
   double dram_transfer_joules = 0.0;  // part of dram_joules for the bits moved, J
 
   double total_joules() const {

@@ -26,12 +26,12 @@ constexpr double k45Sram1MibPj = 100.0;  // 64-bit access, 1 MB array, Horowitz 
 
 // ---------------------------------------------------------------------------
 // 7 nm: Wang et al. 2023, arXiv:2310.11453, Table 2 (reused by Ma et al. 2024).
-constexpr double k7Int8AddPj = 0.007;   // Wang et al. 2023 Table 2 (M)
-constexpr double k7Int8MultPj = 0.07;   // Wang et al. 2023 Table 2 (M)
-constexpr double k7Fp16AddPj = 0.16;    // Wang et al. 2023 Table 2 (L; the 71.4x ratio confirms it)
-constexpr double k7Fp16MultPj = 0.34;   // Wang et al. 2023 Table 2 (L; the 71.4x ratio confirms it)
-constexpr double k7Fp32AddPj = 0.38;    // Wang et al. 2023 Table 2 (M)
-constexpr double k7Fp32MultPj = 1.31;   // Wang et al. 2023 Table 2 (M)
+constexpr double k7Int8AddPj = 0.007;  // Wang et al. 2023 Table 2 (M)
+constexpr double k7Int8MultPj = 0.07;  // Wang et al. 2023 Table 2 (M)
+constexpr double k7Fp16AddPj = 0.16;   // Wang et al. 2023 Table 2 (L; the 71.4x ratio confirms it)
+constexpr double k7Fp16MultPj = 0.34;  // Wang et al. 2023 Table 2 (L; the 71.4x ratio confirms it)
+constexpr double k7Fp32AddPj = 0.38;   // Wang et al. 2023 Table 2 (M)
+constexpr double k7Fp32MultPj = 1.31;  // Wang et al. 2023 Table 2 (M)
 
 // Entries the 7 nm table lacks, scaled from 45 nm (estimates, L):
 // - wider integer adders: by the int8 add ratio of the two tables,
@@ -135,8 +135,8 @@ EnergyTable Table7nm() {
   t.node = "7nm";
   auto& e = t.entries;
   e["int8_add"] = k7Int8AddPj;
-  e["int16_add"] = k45Int16AddPj * k7AdderScale;   // scaled, L
-  e["int32_add"] = k45Int32AddPj * k7AdderScale;   // scaled, L
+  e["int16_add"] = k45Int16AddPj * k7AdderScale;  // scaled, L
+  e["int32_add"] = k45Int32AddPj * k7AdderScale;  // scaled, L
   e["int8_mult"] = k7Int8MultPj;
   e["int32_mult"] = k45Int32MultPj * k7MultScale;  // scaled, L
   e["fp16_add"] = k7Fp16AddPj;
@@ -212,8 +212,8 @@ void ApplyOverrides(const EnergyConfig& energy, EnergyTable& table) {
     const std::string key = "energy.overrides." + name;
     if (!std::binary_search(known.begin(), known.end(), name)) {
       throw Error(ExitCode::kBadInput, key + ": unknown entry; did you mean '" +
-                                           Nearest(name, known) + "'? known: " +
-                                           JoinNames(known, ", "));
+                                           Nearest(name, known) +
+                                           "'? known: " + JoinNames(known, ", "));
     }
     CheckOverrideValue(key, value);
     if (name.rfind("sram_", 0) == 0 && value <= 0.0) {

@@ -20,7 +20,7 @@ inline constexpr const char* kDramPjPerBitEntry = "dram_pj_per_bit";
 inline constexpr const char* kLeakageEntry = "leakage_mw_per_mm2";
 
 struct EnergyTable {
-  std::string node;                     // "7nm" or "45nm"
+  std::string node;                       // "7nm" or "45nm"
   std::map<std::string, double> entries;  // name -> pJ per event (see above)
 
   // The entry `name`. Throws tritsim::Error (kInternal) for a name the table

@@ -109,8 +109,8 @@ TEST(EnergyModel, TernaryArrayBeatsFp16BaselineByAbout71xOnProducts) {
   ternary.array.zero_gating = false;
   ArchConfig fp16 = ternary;
   fp16.array.kind = ArrayKind::kFp16Mac;
-  double ratio = ComputeEnergy(fp16, run).arithmetic_joules /
-                 ComputeEnergy(ternary, run).arithmetic_joules;
+  double ratio =
+      ComputeEnergy(fp16, run).arithmetic_joules / ComputeEnergy(ternary, run).arithmetic_joules;
   EXPECT_NEAR(ratio, 71.4, 0.01 * 71.4);
 }
 
@@ -128,8 +128,8 @@ TEST(EnergyModel, ComponentsSumToTotal) {
   ev.dram_activates = 128;
   ev.dram_refreshes = 2;
   EnergyBreakdown e = ComputeEnergy(arch, RunWithEvents(ev, 1000000));
-  for (double part : {e.arithmetic_joules, e.sram_joules, e.dram_joules, e.decoder_joules,
-                      e.leakage_joules}) {
+  for (double part :
+       {e.arithmetic_joules, e.sram_joules, e.dram_joules, e.decoder_joules, e.leakage_joules}) {
     EXPECT_GT(part, 0.0);
   }
   EXPECT_EQ(e.total_joules(), e.arithmetic_joules + e.sram_joules + e.dram_joules +
@@ -240,8 +240,7 @@ TEST(EnergyModel, UnknownOverrideNameListsKnownEntries) {
 TEST(EnergyModel, NegativeOverrideIsRejected) {
   EnergyConfig energy;
   energy.overrides_pj["fp16_add"] = -1.0;
-  EXPECT_NE(ErrorMessage(energy, "ddr4-3200").find("energy.overrides.fp16_add"),
-            std::string::npos);
+  EXPECT_NE(ErrorMessage(energy, "ddr4-3200").find("energy.overrides.fp16_add"), std::string::npos);
 }
 
 TEST(EnergyModel, UnknownNodeAndPresetListAllowedValues) {
