@@ -60,6 +60,7 @@ DramAddressMap::DramAddressMap(const DramConfig& dram) {
     radix_[f] = RadixOf(dram, dram.address_map[i]);
     below_[f] = below;
     shift_[f] = Log2(below);
+    mask_[f] = radix_[f] == 0 ? ~uint64_t{0} : radix_[f] - 1;
     power_of_two_ = power_of_two_ && IsPowerOfTwo(below);
     below *= radix_[f] == 0 ? 1 : radix_[f];
   }
@@ -74,28 +75,6 @@ uint64_t DramAddressMap::RadixOf(const DramConfig& dram, AddressField field) con
     case AddressField::kRow: break;
   }
   return 0;  // the row: unbounded
-}
-
-uint64_t DramAddressMap::Digit(uint64_t burst, AddressField field) const {
-  const size_t f = Index(field);
-  if (power_of_two_) {
-    const uint64_t value = burst >> shift_[f];
-    return radix_[f] == 0 ? value : value & (radix_[f] - 1);
-  }
-  const uint64_t value = burst / below_[f];
-  return radix_[f] == 0 ? value : value % radix_[f];
-}
-
-DramAddress DramAddressMap::Decode(uint64_t byte_address) const {
-  const uint64_t burst =
-      power_of_two_ ? byte_address >> burst_shift_ : byte_address / burst_bytes_;
-  DramAddress where;
-  where.row = Digit(burst, AddressField::kRow);
-  where.channel = static_cast<uint32_t>(Digit(burst, AddressField::kChannel));
-  where.bank_group = static_cast<uint32_t>(Digit(burst, AddressField::kBankGroup));
-  where.bank = static_cast<uint32_t>(Digit(burst, AddressField::kBank));
-  where.column = static_cast<uint32_t>(Digit(burst, AddressField::kColumn));
-  return where;
 }
 
 uint64_t DramAddressMap::Encode(const DramAddress& where) const {

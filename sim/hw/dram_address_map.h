@@ -33,7 +33,21 @@ class DramAddressMap {
   // field, or if row_bytes is not a whole number of bursts.
   explicit DramAddressMap(const DramConfig& dram);
 
-  DramAddress Decode(uint64_t byte_address) const;
+  DramAddress Decode(uint64_t byte_address) const {
+    const uint64_t burst = BurstIndex(byte_address);
+    DramAddress where;
+    where.row = Digit(burst, AddressField::kRow);
+    where.channel = static_cast<uint32_t>(Digit(burst, AddressField::kChannel));
+    where.bank_group = static_cast<uint32_t>(Digit(burst, AddressField::kBankGroup));
+    where.bank = static_cast<uint32_t>(Digit(burst, AddressField::kBank));
+    where.column = static_cast<uint32_t>(Digit(burst, AddressField::kColumn));
+    return where;
+  }
+
+  // Decode(byte_address).channel, cheaper.
+  uint32_t ChannelOf(uint64_t byte_address) const {
+    return static_cast<uint32_t>(Digit(BurstIndex(byte_address), AddressField::kChannel));
+  }
 
   // Inverse of Decode: the first byte of the burst at `where`.
   // REQUIRES: every field of `where` inside its range.
@@ -45,8 +59,16 @@ class DramAddressMap {
   static constexpr int kFields = 5;
 
   uint64_t RadixOf(const DramConfig& dram, AddressField field) const;
+  uint64_t BurstIndex(uint64_t byte_address) const {
+    return power_of_two_ ? byte_address >> burst_shift_ : byte_address / burst_bytes_;
+  }
   // Digit `field` of a burst index.
-  uint64_t Digit(uint64_t burst, AddressField field) const;
+  uint64_t Digit(uint64_t burst, AddressField field) const {
+    const size_t f = static_cast<size_t>(field);
+    if (power_of_two_) return (burst >> shift_[f]) & mask_[f];
+    const uint64_t value = burst / below_[f];
+    return radix_[f] == 0 ? value : value % radix_[f];
+  }
 
   uint64_t burst_bytes_ = 64;
   unsigned burst_shift_ = 6;
@@ -57,6 +79,7 @@ class DramAddressMap {
   std::array<uint64_t, kFields> radix_{};
   std::array<uint64_t, kFields> below_{};
   std::array<unsigned, kFields> shift_{};
+  std::array<uint64_t, kFields> mask_{};  // radix - 1; all ones for the row
 };
 
 }  // namespace tritsim

@@ -60,11 +60,6 @@ uint64_t DramChannel::AlignUp(uint64_t ps) const {
   return rem == 0 ? ps : ps + (tck_ps_ - rem);
 }
 
-void DramChannel::Enqueue(const DramRequest& request) {
-  queue_[Slot(queued_)] = request;
-  ++queued_;
-}
-
 uint64_t DramChannel::NextPickPs() const {
   if (queued_ == 0) return kNever;
   const uint64_t oldest = queue_[head_].arrival_ps;

@@ -83,7 +83,16 @@ class DramChannel {
   bool Empty() const { return queued_ == 0; }
 
   // REQUIRES: HasRoom(); arrival_ps not earlier than any queued request's.
-  void Enqueue(const DramRequest& request);
+  void Enqueue(const DramRequest& request) { Push() = request; }
+
+  // Appends an entry and returns it for the caller to fill in place (no
+  // copy). REQUIRES: HasRoom(); the caller fills every field before the next
+  // call on this channel, with the same arrival order rule as Enqueue.
+  DramRequest& Push() {
+    DramRequest& slot = queue_[Slot(queued_)];
+    ++queued_;
+    return slot;
+  }
 
   // When the scheduler will make its next pick: kNever if the queue is
   // empty, else the later of the last pick's first command and the oldest

@@ -50,11 +50,6 @@ class DramMemory final : public MemorySystem {
   double peak_bytes_per_second() const override { return peak_bytes_per_second_; }
 
  private:
-  // The request that arrives next, decoded once.
-  struct Pending {
-    DramRequest request;
-    uint32_t channel = 0;
-  };
   // Per-Transfer progress of the event loop.
   struct Progress {
     uint64_t first_burst_address = 0;
@@ -68,10 +63,12 @@ class DramMemory final : public MemorySystem {
     bool is_write = false;
   };
 
-  Pending Decode(const Progress& p) const;
-  uint64_t ArrivalPs(const Progress& p, const Pending& next) const;
+  uint64_t NextAddress(const Progress& p) const {
+    return p.first_burst_address + p.arrived * map_.burst_bytes();
+  }
+  uint64_t ArrivalPs(const Progress& p, uint32_t channel) const;
   size_t EarliestPick(uint64_t& when_ps) const;
-  void Arrive(Progress& p, Pending& next, uint64_t when_ps);
+  void Arrive(Progress& p, uint32_t channel, uint64_t when_ps);
   void PickOn(Progress& p, size_t channel, uint64_t when_ps);
 
   DramAddressMap map_;
@@ -96,23 +93,10 @@ DramMemory::DramMemory(const DramConfig& dram)
                            static_cast<double>(burst_ps) * kPsPerSecond;
 }
 
-DramMemory::Pending DramMemory::Decode(const Progress& p) const {
-  const DramAddress where = map_.Decode(p.first_burst_address + p.arrived * map_.burst_bytes());
-  Pending next;
-  next.channel = where.channel;
-  next.request.row = where.row;
-  next.request.bank_group = where.bank_group;
-  next.request.bank = where.bank_group * banks_per_group_ + where.bank;
-  next.request.is_write = p.is_write;
-  next.request.tag = static_cast<uint32_t>(p.slot);
-  return next;
-}
-
-
 // Earliest time the pending request may enter its queue, or kUnknown while
 // it waits for a queue slot or for a still-queued request's completion.
-uint64_t DramMemory::ArrivalPs(const Progress& p, const Pending& next) const {
-  if (!channels_[next.channel].HasRoom()) return kUnknown;
+uint64_t DramMemory::ArrivalPs(const Progress& p, uint32_t channel) const {
+  if (!channels_[channel].HasRoom()) return kUnknown;
   const uint64_t gate_ps = window_ps_[p.slot];
   if (gate_ps == kUnknown) return kUnknown;
   return std::max(p.now_ps, gate_ps);
@@ -132,14 +116,20 @@ size_t DramMemory::EarliestPick(uint64_t& when_ps) const {
   return best;
 }
 
-void DramMemory::Arrive(Progress& p, Pending& next, uint64_t when_ps) {
-  next.request.arrival_ps = when_ps;
-  channels_[next.channel].Enqueue(next.request);
+// Decodes the next request straight into its channel's queue.
+void DramMemory::Arrive(Progress& p, uint32_t channel, uint64_t when_ps) {
+  const DramAddress where = map_.Decode(NextAddress(p));
+  DramRequest& r = channels_[channel].Push();
+  r.row = where.row;
+  r.arrival_ps = when_ps;
+  r.bank = where.bank_group * banks_per_group_ + where.bank;
+  r.bank_group = where.bank_group;
+  r.tag = static_cast<uint32_t>(p.slot);
+  r.is_write = p.is_write;
   window_ps_[p.slot] = kUnknown;
   p.now_ps = when_ps;
   p.slot = p.slot + 1 == window_ps_.size() ? 0 : p.slot + 1;
   ++p.arrived;
-  if (p.arrived < p.count) next = Decode(p);
 }
 
 void DramMemory::PickOn(Progress& p, size_t channel, uint64_t when_ps) {
@@ -161,13 +151,17 @@ uint64_t DramMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, u
   p.is_write = is_write;
   const uint64_t window = static_cast<uint64_t>(std::max<int64_t>(1, max_outstanding));
   window_ps_.assign(static_cast<size_t>(std::min(window, p.count)), start_ps);
-  Pending next = Decode(p);
   while (p.picked < p.count) {
-    const uint64_t arrive_ps = p.arrived < p.count ? ArrivalPs(p, next) : kUnknown;
+    uint32_t next_channel = 0;
+    uint64_t arrive_ps = kUnknown;
+    if (p.arrived < p.count) {
+      next_channel = map_.ChannelOf(NextAddress(p));
+      arrive_ps = ArrivalPs(p, next_channel);
+    }
     uint64_t pick_ps = kUnknown;
     const size_t channel = EarliestPick(pick_ps);
     if (arrive_ps != kUnknown && arrive_ps <= pick_ps) {
-      Arrive(p, next, arrive_ps);
+      Arrive(p, next_channel, arrive_ps);
     } else {
       PickOn(p, channel, pick_ps);
     }
