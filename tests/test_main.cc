@@ -2,7 +2,9 @@
 // control to GoogleTest from there.
 #include <gtest/gtest.h>
 
-int sc_main(int argc, char** argv) {
+// libsystemc.so defines main() and calls sc_main() (declared extern "C" by SystemC).
+extern "C" int sc_main(int argc, char* argv[]);
+int sc_main(int argc, char* argv[]) {
   testing::InitGoogleTest(&argc, argv);
   return RUN_ALL_TESTS();
 }

@@ -1,0 +1,21 @@
+// The tritsim subcommands. Each takes its own argument vector (after the
+// subcommand name), parses it with Boost.Program_options, and returns the
+// process exit code; errors are thrown as tritsim::Error and turned into a
+// one-line message and exit code by main().
+#pragma once
+
+#include <string>
+#include <vector>
+
+namespace tritsim {
+
+using Args = std::vector<std::string>;
+
+int InspectCommand(const Args& args);
+int TraceCommand(const Args& args);
+int RunCommand(const Args& args);
+
+// Overall usage text (subcommands), for `tritsim --help`.
+std::string MainUsage();
+
+}  // namespace tritsim

@@ -1,0 +1,124 @@
+#include "report/inspect_report.h"
+
+#include <cstdio>
+#include <string>
+
+#include "config/dram_presets.h"
+#include "engine/tiler.h"
+#include "model/model_stats.h"
+
+namespace tritsim {
+namespace {
+
+nlohmann::ordered_json ByClassJson(const ByClass& c) {
+  return {{"attention", c.attention}, {"ffn", c.ffn}, {"embedding", c.embedding},
+          {"head", c.head}, {"norm", c.norm}};
+}
+
+// Weight storage on this design: ternary tensors under the packing on a
+// ternary array; every tensor at its native width on a MAC baseline.
+const ByClass& StorageOnArch(const ModelStats& stats, const ArchConfig& arch) {
+  switch (arch.array.kind) {
+    case ArrayKind::kInt8Mac: return stats.weight_bytes_int8;
+    case ArrayKind::kFp16Mac: return stats.weight_bytes_fp16;
+    case ArrayKind::kTernary: break;
+  }
+  return arch.packing.format == TritPacking::kBase3 ? stats.weight_bytes_base3
+                                                    : stats.weight_bytes_two_bit;
+}
+
+const char* ArrayKindName(ArrayKind kind) {
+  switch (kind) {
+    case ArrayKind::kTernary: return "ternary";
+    case ArrayKind::kInt8Mac: return "int8_mac";
+    case ArrayKind::kFp16Mac: return "fp16_mac";
+  }
+  return "?";
+}
+
+std::string G(double v) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.4g", v);
+  return buf;
+}
+
+}  // namespace
+
+double PeakOpsPerSecond(const ArchConfig& arch) {
+  const HardwareRates rates = ComputeRates(arch);
+  return rates.array_ops_per_cycle / (double(rates.core_period_ps) * 1e-12);
+}
+
+nlohmann::ordered_json InspectJson(const InspectInputs& in) {
+  const ModelStats stats = ComputeModelStats(in.model);
+  const ByClass& storage = StorageOnArch(stats, in.arch);
+  const double peak_ops = PeakOpsPerSecond(in.arch);
+  const double peak_bytes = DramPeakBytesPerSecond(in.arch.dram);
+  nlohmann::ordered_json j;
+  j["schema"] = kInspectSchema;
+  j["model"] = {{"name", in.model.name},
+                {"parameters", stats.parameters.total()},
+                {"weight_bytes", storage.total()},
+                {"kv_bytes_per_token", stats.kv_bytes_per_token},
+                {"ops_per_token", stats.ops_per_token},
+                {"attention_ops_per_context_token", stats.attention_ops_per_context_token},
+                {"parameters_by_class", ByClassJson(stats.parameters)},
+                {"weight_bytes_by_class", ByClassJson(storage)},
+                {"weight_bytes_by_packing",
+                 {{"two_bit", stats.weight_bytes_two_bit.total()},
+                  {"base3", stats.weight_bytes_base3.total()},
+                  {"int8", stats.weight_bytes_int8.total()},
+                  {"fp16", stats.weight_bytes_fp16.total()}}}};
+  j["workload"] = {{"prefill", in.workload.prefill_tokens}, {"decode", in.workload.decode_tokens},
+                   {"context", in.workload.context_tokens}, {"batch", in.workload.batch}};
+  const double kv_tokens = double(in.workload.context_tokens + in.workload.prefill_tokens +
+                                  in.workload.decode_tokens) * double(in.workload.batch);
+  j["workload"]["kv_cache_bytes_at_end"] = stats.kv_bytes_per_token * kv_tokens;
+  j["arch"] = {{"name", in.arch.name},
+               {"array_kind", ArrayKindName(in.arch.array.kind)},
+               {"peak_ops_per_second", peak_ops},
+               {"dram_peak_bytes_per_second", peak_bytes},
+               {"ridge_ops_per_byte", peak_ops / peak_bytes},
+               {"sram_bytes", double(in.arch.sram.capacity_kib) * 1024.0}};
+  // Decode at batch 1 reads every weight once per token: its intensity.
+  j["arch"]["decode_intensity_ops_per_byte"] = stats.ops_per_token / storage.total();
+  j["arch"]["decode_tokens_per_second_bound"] =
+      std::min(peak_ops / stats.ops_per_token, peak_bytes / storage.total());
+  return j;
+}
+
+void PrintInspect(const InspectInputs& in, std::ostream& out) {
+  const nlohmann::ordered_json j = InspectJson(in);
+  const auto& m = j["model"];
+  const auto& a = j["arch"];
+  out << "tritsim inspect: model " << in.model.name << ", design " << in.arch.name << "\n";
+  out << "  parameters      " << G(m["parameters"].get<double>() / 1e9) << " G  (attention "
+      << G(m["parameters_by_class"]["attention"].get<double>() / 1e9) << ", ffn "
+      << G(m["parameters_by_class"]["ffn"].get<double>() / 1e9) << ", embedding "
+      << G(m["parameters_by_class"]["embedding"].get<double>() / 1e9) << ", head "
+      << G(m["parameters_by_class"]["head"].get<double>() / 1e9) << ", norm "
+      << G(m["parameters_by_class"]["norm"].get<double>() / 1e6) << " M)\n";
+  const auto& p = m["weight_bytes_by_packing"];
+  out << "  weight bytes    " << G(m["weight_bytes"].get<double>() / 1e9) << " GB on this design"
+      << "  (2-bit " << G(p["two_bit"].get<double>() / 1e9) << ", base-3 "
+      << G(p["base3"].get<double>() / 1e9) << ", int8 " << G(p["int8"].get<double>() / 1e9)
+      << ", fp16 " << G(p["fp16"].get<double>() / 1e9) << " GB)\n";
+  out << "  KV cache        " << G(m["kv_bytes_per_token"].get<double>() / 1024.0)
+      << " KiB per token; " << G(j["workload"]["kv_cache_bytes_at_end"].get<double>() / 1e6)
+      << " MB at the end of this workload\n";
+  out << "  ops per token   " << G(m["ops_per_token"].get<double>() / 1e9) << " Gop at context 0, +"
+      << G(m["attention_ops_per_context_token"].get<double>() / 1e6) << " Mop per context token\n";
+  out << "  peak compute    " << G(a["peak_ops_per_second"].get<double>() / 1e12) << " Top/s\n";
+  out << "  peak DRAM       " << G(a["dram_peak_bytes_per_second"].get<double>() / 1e9) << " GB/s\n";
+  out << "  ridge point     " << G(a["ridge_ops_per_byte"].get<double>()) << " op/B; batch-1 decode runs at "
+      << G(a["decode_intensity_ops_per_byte"].get<double>()) << " op/B ("
+      << (a["decode_intensity_ops_per_byte"].get<double>() < a["ridge_ops_per_byte"].get<double>()
+              ? "memory-bound"
+              : "compute-bound")
+      << ")\n";
+  out << "  decode bound    " << G(a["decode_tokens_per_second_bound"].get<double>())
+      << " tokens/s at batch 1 (roofline, weights only)\n";
+  out << "  Model estimates for architecture exploration, not sign-off numbers.\n";
+}
+
+}  // namespace tritsim

@@ -1,0 +1,257 @@
+#include "report/run_report.h"
+
+#include <algorithm>
+#include <cstdio>
+#include <sstream>
+#include <vector>
+
+#include "trace/trace_format.h"
+
+namespace tritsim {
+namespace {
+
+double Seconds(uint64_t cycles, const RunResult& run) { return double(cycles) / (run.core_mhz * 1e6); }
+
+double Ratio(double num, double den) { return den > 0 ? num / den : 0.0; }
+
+const char* RegimeName(Regime r) { return r == Regime::kCompute ? "compute" : "memory"; }
+
+double Efficiency(const OpResult& layer) { return Ratio(double(layer.bound_cycles), double(layer.cycles)); }
+
+uint64_t DecodeTokensPerSequence(const RunReport& r) {
+  return uint64_t(std::max<int64_t>(0, r.workload.decode_tokens));
+}
+
+std::string Fixed(double value, int digits) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", digits, value);
+  return buf;
+}
+
+std::string Scaled(double value, const char* unit) {
+  const char* prefixes[] = {"", "k", "M", "G", "T", "P"};
+  int i = 0;
+  while (value >= 1000.0 && i < 5) {
+    value /= 1000.0;
+    ++i;
+  }
+  return Fixed(value, value < 10 ? 2 : 1) + " " + prefixes[i] + unit;
+}
+
+std::string Time(double seconds) {
+  if (seconds >= 1) return Fixed(seconds, 3) + " s";
+  if (seconds >= 1e-3) return Fixed(seconds * 1e3, 3) + " ms";
+  return Fixed(seconds * 1e6, 3) + " us";
+}
+
+std::string Percent(double fraction) { return Fixed(fraction * 100.0, 1) + "%"; }
+
+}  // namespace
+
+Headline ComputeHeadline(const RunReport& r) {
+  const RunResult& run = r.run;
+  Headline h;
+  h.seconds = Seconds(run.cycles, run);
+  h.tokens_per_second = Ratio(double(run.tokens), h.seconds);
+  h.time_to_first_token_seconds = Seconds(run.first_token_cycles, run);
+  for (const PhaseResult& p : run.phases) {
+    if (p.phase == Phase::kDecode && DecodeTokensPerSequence(r) > 0) {
+      h.time_per_output_token_seconds = Seconds(p.cycles, run) / double(DecodeTokensPerSequence(r));
+    }
+  }
+  h.joules_per_token = Ratio(r.energy.total_joules(), double(run.tokens));
+  h.picojoules_per_op = Ratio(r.energy.total_joules() * 1e12, double(run.ops));
+  const double bytes = double(run.dram.reads + run.dram.writes) > 0
+                           ? double(run.events.dram_bytes_read + run.events.dram_bytes_written)
+                           : 0.0;
+  h.dram_bandwidth_bytes_per_second = Ratio(bytes, h.seconds);
+  const double channel_ps = double(run.sim_ps) * double(std::max<int64_t>(1, r.arch.dram.channels));
+  h.dram_bus_utilization = r.arch.dram.is_ideal()
+                               ? Ratio(h.dram_bandwidth_bytes_per_second, run.dram_peak_bytes_per_second)
+                               : Ratio(double(run.dram.busy_ps), channel_ps);
+  h.refresh_fraction = Ratio(double(run.dram.refresh_ps), channel_ps);
+  h.tree_utilization = Ratio(double(run.stalls.busy), double(run.cycles));
+  h.vector_utilization = Ratio(double(run.vector_busy_cycles), double(run.cycles));
+  h.sram_port_utilization =
+      Ratio(double(run.sram_port_busy_cycles),
+            double(run.cycles) * double(r.arch.sram.banks) * double(r.arch.sram.ports));
+  double memory_cycles = 0, all_cycles = 0;
+  for (const OpResult& layer : run.layers) {
+    all_cycles += double(layer.cycles);
+    if (layer.regime == Regime::kMemory) memory_cycles += double(layer.cycles);
+  }
+  h.memory_bound_cycle_share = Ratio(memory_cycles, all_cycles);
+  return h;
+}
+
+nlohmann::ordered_json RunJson(const RunReport& r) {
+  using nlohmann::ordered_json;
+  const RunResult& run = r.run;
+  const Headline h = ComputeHeadline(r);
+  ordered_json j;
+  j["schema"] = kRunSchema;
+  j["design"] = {{"arch", run.arch_name}, {"model", run.model_name}, {"core_mhz", run.core_mhz}};
+  j["workload"] = {{"prefill", r.workload.prefill_tokens}, {"decode", r.workload.decode_tokens},
+                   {"context", r.workload.context_tokens}, {"batch", r.workload.batch}};
+  j["totals"] = {{"cycles", run.cycles},
+                 {"seconds", h.seconds},
+                 {"tokens", run.tokens},
+                 {"tokens_per_second", h.tokens_per_second},
+                 {"ops", run.ops},
+                 {"time_to_first_token_seconds", h.time_to_first_token_seconds},
+                 {"time_per_output_token_seconds", h.time_per_output_token_seconds},
+                 {"energy_joules", r.energy.total_joules()},
+                 {"joules_per_token", h.joules_per_token},
+                 {"picojoules_per_op", h.picojoules_per_op},
+                 {"area_mm2", r.area.total_mm2()}};
+  ordered_json phases = ordered_json::array();
+  for (const PhaseResult& p : run.phases) {
+    const double s = Seconds(p.cycles, run);
+    phases.push_back({{"name", PhaseName(p.phase)},
+                      {"cycles", p.cycles},
+                      {"seconds", s},
+                      {"tokens", p.tokens},
+                      {"tokens_per_second", Ratio(double(p.tokens), s)}});
+  }
+  j["phases"] = phases;
+  j["stalls"] = {{"busy", run.stalls.busy},
+                 {"dram_wait", run.stalls.dram_wait},
+                 {"sram_conflict", run.stalls.sram_conflict},
+                 {"vector_wait", run.stalls.vector_wait},
+                 {"idle", run.stalls.idle}};
+  j["utilization"] = {{"tree_array", h.tree_utilization},
+                      {"vector_unit", h.vector_utilization},
+                      {"sram_ports", h.sram_port_utilization},
+                      {"dram_bus", h.dram_bus_utilization}};
+  j["dram"] = {{"bytes_read", run.events.dram_bytes_read},
+               {"bytes_written", run.events.dram_bytes_written},
+               {"row_hit_rate", run.dram.row_hit_rate()},
+               {"bandwidth_bytes_per_second", h.dram_bandwidth_bytes_per_second},
+               {"refresh_fraction", h.refresh_fraction},
+               {"peak_bytes_per_second", run.dram_peak_bytes_per_second},
+               {"reads", run.dram.reads},
+               {"writes", run.dram.writes},
+               {"row_hits", run.dram.row_hits},
+               {"row_misses", run.dram.row_misses},
+               {"row_conflicts", run.dram.row_conflicts},
+               {"activates", run.dram.activates},
+               {"refreshes", run.dram.refreshes}};
+  j["energy"] = {{"arithmetic", r.energy.arithmetic_joules},
+                 {"sram", r.energy.sram_joules},
+                 {"dram", r.energy.dram_joules},
+                 {"decoder", r.energy.decoder_joules},
+                 {"leakage", r.energy.leakage_joules}};
+  j["area"] = {{"array_mm2", r.area.array_mm2},     {"vector_mm2", r.area.vector_mm2},
+               {"sram_mm2", r.area.sram_mm2},       {"decoder_mm2", r.area.decoder_mm2},
+               {"other_mm2", r.area.other_mm2},     {"total_mm2", r.area.total_mm2()}};
+  j["arch"] = {{"peak_ops_per_second", run.peak_ops_per_second},
+               {"dram_peak_bytes_per_second", run.dram_peak_bytes_per_second},
+               {"ridge_ops_per_byte", Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second)}};
+  const EventCounts& e = run.events;
+  j["events"] = {{"weight_uses", e.weight_uses},         {"weight_uses_zero", e.weight_uses_zero},
+                 {"accumulator_adds", e.accumulator_adds}, {"decoder_bytes", e.decoder_bytes},
+                 {"vector_macs", e.vector_macs},         {"vector_special", e.vector_special},
+                 {"vector_elementwise", e.vector_elementwise}, {"sram_reads", e.sram_reads},
+                 {"sram_writes", e.sram_writes}};
+  ordered_json layers = ordered_json::array();
+  for (const OpResult& layer : run.layers) {
+    layers.push_back({{"name", layer.op.name},
+                      {"layer", layer.op.layer},
+                      {"phase", PhaseName(layer.op.phase)},
+                      {"kind", OpKindName(layer.op.kind)},
+                      {"tensor", TensorClassName(layer.op.tensor)},
+                      {"cycles", layer.cycles},
+                      {"ops", layer.ops},
+                      {"dram_bytes", layer.dram_bytes},
+                      {"intensity_ops_per_byte", layer.intensity()},
+                      {"bound_cycles", layer.bound_cycles},
+                      {"regime", RegimeName(layer.regime)},
+                      {"roofline_efficiency", Efficiency(layer)}});
+  }
+  j["layers"] = layers;
+  return j;
+}
+
+std::string RunCsv(const RunReport& r) {
+  std::ostringstream out;
+  out << "phase,layer,name,kind,tensor,cycles,seconds,ops,dram_bytes,intensity_ops_per_byte,"
+         "bound_cycles,regime,roofline_efficiency,dram_energy_joules\n";
+  const double dram_pj_per_byte =
+      Ratio(r.energy.dram_joules * 1e12,
+            double(r.run.events.dram_bytes_read + r.run.events.dram_bytes_written));
+  for (const OpResult& layer : r.run.layers) {
+    char line[512];
+    std::snprintf(line, sizeof line, "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g\n",
+                  PhaseName(layer.op.phase), static_cast<long long>(layer.op.layer),
+                  layer.op.name.c_str(), OpKindName(layer.op.kind), TensorClassName(layer.op.tensor),
+                  static_cast<unsigned long long>(layer.cycles), Seconds(layer.cycles, r.run),
+                  static_cast<unsigned long long>(layer.ops),
+                  static_cast<unsigned long long>(layer.dram_bytes), layer.intensity(),
+                  static_cast<unsigned long long>(layer.bound_cycles), RegimeName(layer.regime),
+                  Efficiency(layer), double(layer.dram_bytes) * dram_pj_per_byte * 1e-12);
+    out << line;
+  }
+  return out.str();
+}
+
+void PrintRunSummary(const RunReport& r, std::ostream& out) {
+  const RunResult& run = r.run;
+  const Headline h = ComputeHeadline(r);
+  out << "tritsim run: " << run.model_name << " on " << run.arch_name << "\n";
+  out << "  workload        prefill " << r.workload.prefill_tokens << ", decode "
+      << r.workload.decode_tokens << ", context " << r.workload.context_tokens << ", batch "
+      << r.workload.batch << "\n";
+  out << "  core clock      " << Fixed(run.core_mhz, 1) << " MHz; peak "
+      << Scaled(run.peak_ops_per_second, "op/s") << ", DRAM " << Scaled(run.dram_peak_bytes_per_second, "B/s")
+      << ", ridge " << Fixed(Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second), 1)
+      << " op/B\n\n";
+  out << "  time            " << run.cycles << " cycles = " << Time(h.seconds) << "\n";
+  for (const PhaseResult& p : run.phases) {
+    out << "    " << PhaseName(p.phase) << (p.phase == Phase::kDecode ? "        " : "       ")
+        << p.cycles << " cycles = " << Time(Seconds(p.cycles, run)) << ", " << p.tokens << " tokens\n";
+  }
+  out << "  first token     " << Time(h.time_to_first_token_seconds) << "\n";
+  if (h.time_per_output_token_seconds > 0) {
+    out << "  per output tok  " << Time(h.time_per_output_token_seconds) << "\n";
+  }
+  out << "  throughput      " << Fixed(h.tokens_per_second, 2) << " tokens/s\n\n";
+  const StallBreakdown& s = run.stalls;
+  const double c = double(std::max<uint64_t>(1, run.cycles));
+  out << "  tree array      busy " << Percent(s.busy / c) << ", DRAM wait " << Percent(s.dram_wait / c)
+      << ", SRAM conflict " << Percent(s.sram_conflict / c) << ", vector wait "
+      << Percent(s.vector_wait / c) << ", idle " << Percent(s.idle / c) << "\n";
+  out << "  utilization     tree array " << Percent(h.tree_utilization) << ", vector unit "
+      << Percent(h.vector_utilization) << ", SRAM ports " << Percent(h.sram_port_utilization)
+      << ", DRAM bus " << Percent(h.dram_bus_utilization) << "\n";
+  out << "  DRAM            " << Scaled(h.dram_bandwidth_bytes_per_second, "B/s") << " achieved, row hits "
+      << Percent(run.dram.row_hit_rate()) << ", refresh " << Percent(h.refresh_fraction) << "\n\n";
+  out << "  energy          " << Fixed(r.energy.total_joules() * 1e3, 3) << " mJ total, "
+      << Fixed(h.joules_per_token * 1e3, 3) << " mJ/token, " << Fixed(h.picojoules_per_op, 3) << " pJ/op\n";
+  const double e = std::max(1e-300, r.energy.total_joules());
+  out << "    by component  arithmetic " << Percent(r.energy.arithmetic_joules / e) << ", SRAM "
+      << Percent(r.energy.sram_joules / e) << ", DRAM " << Percent(r.energy.dram_joules / e)
+      << ", decoder " << Percent(r.energy.decoder_joules / e) << ", leakage "
+      << Percent(r.energy.leakage_joules / e) << "\n";
+  out << "  area            " << Fixed(r.area.total_mm2(), 2) << " mm^2 (array "
+      << Fixed(r.area.array_mm2, 2) << ", vector " << Fixed(r.area.vector_mm2, 2) << ", SRAM "
+      << Fixed(r.area.sram_mm2, 2) << ", decoder " << Fixed(r.area.decoder_mm2, 2) << ", other "
+      << Fixed(r.area.other_mm2, 2) << "), estimate\n\n";
+  std::vector<const OpResult*> top;
+  for (const OpResult& layer : run.layers) top.push_back(&layer);
+  std::stable_sort(top.begin(), top.end(),
+                   [](const OpResult* a, const OpResult* b) { return a->cycles > b->cycles; });
+  out << "  top layers by time\n";
+  out << "    phase    layer  op               cycles      op/B     regime   of bound\n";
+  for (size_t i = 0; i < std::min<size_t>(8, top.size()); ++i) {
+    const OpResult& l = *top[i];
+    char line[256];
+    std::snprintf(line, sizeof line, "    %-8s %5lld  %-16s %10llu %9.1f  %-8s %6.1f%%\n",
+                  PhaseName(l.op.phase), static_cast<long long>(l.op.layer), l.op.name.c_str(),
+                  static_cast<unsigned long long>(l.cycles), l.intensity(), RegimeName(l.regime),
+                  Efficiency(l) * 100.0);
+    out << line;
+  }
+  out << "\n  Model estimates for architecture exploration, not sign-off numbers.\n";
+}
+
+}  // namespace tritsim
