@@ -14,6 +14,7 @@
 #include "config/dram_presets.h"
 #include "config/embedded_defaults.h"
 #include "config/yaml_reader.h"
+#include "energy/energy_table.h"
 
 namespace tritsim {
 namespace {
@@ -299,10 +300,13 @@ void ReadDram(const Section& s, DramConfig& d) {
 void ReadEnergy(const Section& s, EnergyConfig& e) {
   const int node = s.ReadChoice("node", {"7nm", "45nm"});
   if (node >= 0) e.node = node == 0 ? "7nm" : "45nm";
-  // Entry names belong to the energy model, which checks them; here they
-  // must be identifiers with finite, non-negative values.
+  // Override names are the entries of the node's built-in table (owned by
+  // the energy model) plus "dram_pj_per_bit".
+  std::vector<std::string> known;
+  for (const auto& entry : BuiltinEnergyTable(e.node).entries) known.push_back(entry.first);
+  known.push_back(kDramPjPerBitEntry);
   std::vector<std::pair<std::string, double>> entries;
-  s.ReadNumberMap("overrides", kEnergyPj, entries);
+  s.ReadNumberMap("overrides", kEnergyPj, known, entries);
   for (const auto& [name, value] : entries) e.overrides_pj[name] = value;
   s.ReadReal("dram_pj_per_bit", kDramPjPerBit, e.dram_pj_per_bit);
 }

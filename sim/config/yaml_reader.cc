@@ -202,13 +202,6 @@ bool ParseReal(const std::string& text, double& out) {
   return result.ec == std::errc() && result.ptr == last && std::isfinite(out);
 }
 
-bool IsIdentifier(const std::string& s) {
-  if (s.empty() || s.size() > kMaxStringChars) return false;
-  for (char c : s) {
-    if (!(std::isalnum(static_cast<unsigned char>(c)) || c == '_')) return false;
-  }
-  return true;
-}
 
 }  // namespace
 
@@ -540,12 +533,15 @@ bool Section::ReadNameList(const std::string& key, const std::vector<std::string
 }
 
 void Section::ReadNumberMap(const std::string& key, const RealRule& rule,
+                            const std::vector<std::string>& known,
                             std::vector<std::pair<std::string, double>>& entries) const {
   const Section map = Child(key);
   for (const Entry& e : map.entries_) {
-    if (!IsIdentifier(e.key)) {
-      map.FailAt(e.key, "names must be letters, digits and '_' (at most " +
-                            std::to_string(kMaxStringChars) + " characters)");
+    if (!Contains(known, e.key)) {
+      const std::string suggestion = NearestWord(e.key, known);
+      map.FailAt(e.key, suggestion.empty()
+                            ? "unknown entry; known: " + JoinList(known)
+                            : "unknown entry; did you mean '" + suggestion + "'?");
     }
     double v = 0.0;
     map.ReadReal(e.key, rule, v);

@@ -126,8 +126,10 @@ class Section {
   // here; the caller checks the combination.
   bool ReadNameList(const std::string& key, const std::vector<std::string>& names,
                     std::vector<int>& indices) const;
-  // An open map of name -> real number; names must be identifiers.
+  // An open map of name -> real number; each name must be one of `known`
+  // (an unknown one is an error suggesting the nearest).
   void ReadNumberMap(const std::string& key, const RealRule& rule,
+                     const std::vector<std::string>& known,
                      std::vector<std::pair<std::string, double>>& entries) const;
 
   // An error at `key` (its line if present, else this section's).

@@ -143,9 +143,9 @@ TEST(ConfigLoader, OverriddenPresetStillYieldsToFileKeys) {
 
 TEST(ConfigLoader, OverrideCreatesMissingSections) {
   const ArchConfig a = LoadArchText("name: bare\n", "bare.yaml",
-                                    {{"dram.timing.tRCD", "30"}, {"energy.overrides.sram_read", "7.5"}});
+                                    {{"dram.timing.tRCD", "30"}, {"energy.overrides.sram_64bit_32kib", "7.5"}});
   EXPECT_EQ(a.dram.timing.tRCD, 30);
-  EXPECT_DOUBLE_EQ(a.energy.overrides_pj.at("sram_read"), 7.5);
+  EXPECT_DOUBLE_EQ(a.energy.overrides_pj.at("sram_64bit_32kib"), 7.5);
 }
 
 TEST(ConfigLoader, LaterOverrideWins) {
@@ -377,7 +377,13 @@ const BadCase kBadCases[] = {
     {"SectionNotAMap", Kind::kArch, "arch_section_not_map.yaml", nullptr, {},
      "arch_section_not_map.yaml:2: sram: must be a map of keys, got 2048"},
     {"NegativeEnergy", Kind::kArch, "arch_energy_negative.yaml", nullptr, {},
-     "arch_energy_negative.yaml:4: energy.overrides.int8_add_pj: must be a number in [0, "},
+     "arch_energy_negative.yaml:4: energy.overrides.int8_add: must be a number in [0, "},
+    {"UnknownEnergyEntry", Kind::kArch, "arch_energy_unknown_entry.yaml", nullptr, {},
+     "arch_energy_unknown_entry.yaml:5: energy.overrides.int8_ad: unknown entry; did you mean "
+     "'int8_add'?"},
+    {"OverrideUnknownEnergyEntry", Kind::kArch, nullptr, "name: x\n",
+     {{"energy.overrides.fp16_mul", "0.3"}},
+     "--set energy.overrides.fp16_mul: unknown entry; did you mean 'fp16_mult'?"},
     {"KvHeadsNotDividingHeads", Kind::kModel, "model_kv_heads_not_dividing.yaml", nullptr, {},
      "model_kv_heads_not_dividing.yaml:5: kv_heads: kv_heads (12) must divide heads (32)"},
     {"EmbeddingTernary", Kind::kModel, "model_embedding_ternary.yaml", nullptr, {},
