@@ -348,9 +348,9 @@ class TraceFileReader : public TraceSource {
   bool ReadRawLine() {
     std::streambuf& buf = *in_.rdbuf();
     line_.clear();
-    had_newline_ = false;
     int c = buf.sbumpc();
-    if (c == std::char_traits<char>::eof()) return false;
+    if (c == std::char_traits<char>::eof()) return false;  // nothing cut short
+    had_newline_ = false;
     ++line_number_;
     for (; c != std::char_traits<char>::eof(); c = buf.sbumpc()) {
       if (c == '\n') {
@@ -409,7 +409,6 @@ class TraceFileReader : public TraceSource {
   bool NextRecord(TraceRecord& record) {
     if (ended_) return false;
     if (!ReadRecordLine()) {
-      had_newline_ = true;  // the missing 'end' is the problem, not the last line
       throw LineError{"end", "file ends without the 'end' line (truncated trace?)"};
     }
     const std::string_view type = words_[0];

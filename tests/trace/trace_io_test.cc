@@ -254,7 +254,7 @@ TEST_F(TraceIo, DoublesPrintShortestAndReadBackExactly) {
 // One malformed file, where its error must point, and what it must say.
 struct BadTrace {
   const char* file;
-  int line;
+  int line;             // 0: no line (the file as a whole)
   const char* message;  // substring of the error
 };
 
@@ -285,6 +285,10 @@ const BadTrace kBadTraces[] = {
     {"zero_fraction_one.trace", 5, "op.zero_fraction: '1' is not allowed"},
     {"record_after_end.trace", 7, "record after the 'end' line"},
     {"unknown_record.trace", 5, "unknown record 'layer', allowed step | op | end"},
+    {"empty.trace", 0, "empty file, expected a tritsim trace"},
+    {"header_cut.trace", 2, "file ends inside the header"},
+    {"step_before_workload.trace", 3, "workload: missing header line before 'step'"},
+    {"model_twice.trace", 3, "model: given twice"},
 };
 
 // Opens and drains `path`; returns the error text, or "" if it read cleanly.
@@ -308,7 +312,9 @@ TEST_F(TraceIo, EveryBadFileIsRejectedAtItsLine) {
     ExitCode code = ExitCode::kOk;
     const std::string error = ReadError(path, &code);
     EXPECT_EQ(code, ExitCode::kBadInput);
-    const std::string where = path + ":" + std::to_string(bad.line) + ": ";
+    // Line 0: the file as a whole (InputError then omits the line number).
+    const std::string where =
+        bad.line > 0 ? path + ":" + std::to_string(bad.line) + ": " : path + ": ";
     EXPECT_EQ(error.substr(0, where.size()), where) << error;
     EXPECT_NE(error.find(bad.message), std::string::npos) << error;
     EXPECT_EQ(error.find('\n'), std::string::npos) << "message must be one line";
