@@ -20,10 +20,12 @@ inline constexpr const char* kTraceMagic = "tritsim-trace";
 // The only format version this build reads and writes.
 inline constexpr int kTraceVersion = 1;
 
-// Reader limits. They reject corrupt numbers early and keep products such as
-// m * n * k far from int64 overflow; none is a hardware limit.
-inline constexpr int64_t kTraceMaxDim = int64_t{1} << 31;      // m, n, k
-inline constexpr int64_t kTraceMaxContext = int64_t{1} << 24;  // context, step tokens
+// Reader limits. They reject corrupt numbers early; none is a hardware limit.
+// Each is above what the builder can emit for a workload the config loader
+// accepts (e.g. contexts reach C + P + S = 2^24 + 2^20 + 2^20 < 2^25 there,
+// rows reach batch x prompt = 2^12 x 2^20 = 2^32).
+inline constexpr int64_t kTraceMaxDim = int64_t{1} << 32;      // m, n, k
+inline constexpr int64_t kTraceMaxContext = int64_t{1} << 25;  // contexts, step tokens
 inline constexpr int64_t kTraceMaxHeads = int64_t{1} << 16;    // heads, kv_heads, head_dim
 inline constexpr int64_t kTraceMaxLayer = int64_t{1} << 16;    // layer index is < this
 inline constexpr int64_t kTraceMaxBatch = int64_t{1} << 20;    // batch

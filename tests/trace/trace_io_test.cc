@@ -130,6 +130,22 @@ TEST_F(TraceIo, ReaderGivesBackTheBuilderRecords) {
   EXPECT_EQ(records, 4 * (1 + 1 + 18 * 2 + 3));  // 4 steps of step line + ops
 }
 
+TEST_F(TraceIo, LargestWorkloadsReadBack) {
+  // The reader's caps must admit every trace the builder writes for a
+  // workload within ValidateWorkload's limits (prompt and decode 2^20,
+  // context 2^24, batch 4096 in sim/config/config_loader.cc).
+  ModelConfig m = SmallModel();
+  m.layers = 1;
+  WorkloadConfig w;
+  w.prefill_tokens = int64_t{1} << 20;
+  w.decode_tokens = 2;
+  w.context_tokens = int64_t{1} << 24;
+  w.batch = 4096;
+  auto built = BuildTrace(m, w);
+  const std::string text = WriteToString(*built);
+  EXPECT_EQ(RewriteFile(text), text);
+}
+
 TEST_F(TraceIo, CommentsBlankLinesAndCrlfAreIgnored) {
   const std::string clean = BuiltText();
   std::string edited;
@@ -261,7 +277,7 @@ struct BadTrace {
 const BadTrace kBadTraces[] = {
     {"truncated_record.trace", 6, "truncated record"},
     {"unknown_kind.trace", 5, "op.kind: 'matmul' is not allowed, allowed embed | norm"},
-    {"negative_m.trace", 6, "op.m: -5 is out of range, allowed 1 to 2147483648"},
+    {"negative_m.trace", 6, "op.m: -5 is out of range, allowed 1 to 4294967296"},
     {"op_before_step.trace", 5, "op before any step line"},
     {"decode_out_of_order.trace", 6, "decode step 2 out of order, expected 1"},
     {"bad_magic.trace", 1, "not a tritsim trace"},
@@ -276,7 +292,7 @@ const BadTrace kBadTraces[] = {
     {"missing_end.trace", 5, "file ends without the 'end' line"},
     {"none_tensor_with_weights.trace", 5, "op.weights: 'int8' is not allowed with tensor=none"},
     {"bad_bits.trace", 5, "op.act_bits: 4 is not allowed, allowed 8 | 16"},
-    {"context_too_large.trace", 5, "op.context: 20000000 is out of range, allowed 0 to 16777216"},
+    {"context_too_large.trace", 5, "op.context: 40000000 is out of range, allowed 0 to 33554432"},
     {"kv_heads_not_dividing.trace", 5, "op.kv_heads: 4 does not divide heads=6"},
     {"decode_count_mismatch.trace", 6, "header says decode=2 but the trace has 1 decode steps"},
     {"batch_mismatch.trace", 4, "step.batch: 2 differs from the header's batch=1"},
