@@ -198,8 +198,8 @@ void DramChannel::Refresh() {
   next_refresh_ps_ += t_.tREFI;
 }
 
-DramPick DramChannel::Pick() {
-  const uint64_t now_ps = NextPickPs();
+// The general case: any kind of request, refresh in the way or not.
+DramPick DramChannel::PickAny(uint64_t now_ps) {
   while (now_ps >= next_refresh_ps_) Refresh();
   size_t age = ChooseFrFcfs(now_ps);
   DramCommandTimes times = Plan(At(age), now_ps);
@@ -213,6 +213,35 @@ DramPick DramChannel::Pick() {
   DramPick pick{r.tag, times};
   RemoveAt(age);
   return pick;
+}
+
+// The oldest request is a ready row hit and its CAS comes before the next
+// refresh: what PickAny would do in that case, without the general steps.
+DramPick DramChannel::PickOldestHit(uint64_t cas_ps) {
+  const DramRequest& r = queue_[head_];
+  DramPick pick;
+  pick.tag = r.tag;
+  pick.times.cas_ps = cas_ps;
+  pick.times.done_ps = cas_ps + (r.is_write ? t_.CWL : t_.CL) + t_.burst;
+  ++stats_.row_hits;
+  ++(r.is_write ? stats_.writes : stats_.reads);
+  stats_.busy_ps += t_.burst;
+  CommitCas(r, pick.times);
+  pick_ok_ps_ = cas_ps;
+  head_ = Slot(1);
+  --queued_;
+  return pick;
+}
+
+DramPick DramChannel::Pick() {
+  const uint64_t now_ps = NextPickPs();
+  const DramRequest& oldest = queue_[head_];
+  if (now_ps < next_refresh_ps_ && IsReadyHit(oldest, now_ps)) {
+    // A ready hit's CAS waits only for channel-wide constraints (ACT + tRCD has passed).
+    const uint64_t cas_ps = PlanCas(oldest, now_ps);
+    if (cas_ps < next_refresh_ps_) return PickOldestHit(cas_ps);
+  }
+  return PickAny(now_ps);
 }
 
 void DramChannel::Finish(uint64_t end_ps) {

@@ -132,6 +132,8 @@ class DramChannel {
   };
 
   static TimingPs ToPs(const DramTiming& t, uint64_t tck_ps);
+  DramPick PickAny(uint64_t now_ps);
+  DramPick PickOldestHit(uint64_t cas_ps);
   size_t ChooseFrFcfs(uint64_t now_ps) const;
   bool IsReadyHit(const DramRequest& r, uint64_t now_ps) const;
   DramCommandTimes Plan(const DramRequest& r, uint64_t now_ps) const;

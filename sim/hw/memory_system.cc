@@ -66,6 +66,9 @@ class DramMemory final : public MemorySystem {
   uint64_t NextAddress(const Progress& p) const {
     return p.first_burst_address + p.arrived * map_.burst_bytes();
   }
+  uint32_t ChannelOf(const Progress& p) const {
+    return channels_.size() == 1 ? 0 : map_.ChannelOf(NextAddress(p));
+  }
   uint64_t ArrivalPs(const Progress& p, uint32_t channel) const;
   size_t EarliestPick(uint64_t& when_ps) const;
   void Arrive(Progress& p, uint32_t channel, uint64_t when_ps);
@@ -78,6 +81,8 @@ class DramMemory final : public MemorySystem {
   // Completion of the request that last used each window slot (kUnknown
   // while it is still queued); slot i % max_outstanding.
   std::vector<uint64_t> window_ps_;
+  // channels_[c].NextPickPs(), kept up to date after every change to c.
+  std::vector<uint64_t> pick_ps_;
   mutable DramStats total_;
 };
 
@@ -85,6 +90,7 @@ DramMemory::DramMemory(const DramConfig& dram)
     : map_(dram), banks_per_group_(static_cast<uint32_t>(dram.banks_per_group)) {
   channels_.reserve(static_cast<size_t>(dram.channels));
   for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram);
+  pick_ps_.assign(channels_.size(), DramChannel::kNever);
   const uint64_t burst_ps =
       channels_.front().tck_ps() * static_cast<uint64_t>(dram.timing.burst_length) /
       kDdrTransfersPerCycle;
@@ -104,10 +110,11 @@ uint64_t DramMemory::ArrivalPs(const Progress& p, uint32_t channel) const {
 
 // The channel whose scheduler picks next and when (ties: lowest channel).
 size_t DramMemory::EarliestPick(uint64_t& when_ps) const {
+  when_ps = pick_ps_[0];
+  if (pick_ps_.size() == 1) return 0;
   size_t best = 0;
-  when_ps = kUnknown;
-  for (size_t c = 0; c < channels_.size(); ++c) {
-    const uint64_t t = channels_[c].NextPickPs();
+  for (size_t c = 1; c < pick_ps_.size(); ++c) {
+    const uint64_t t = pick_ps_[c];
     if (t < when_ps) {
       when_ps = t;
       best = c;
@@ -126,6 +133,7 @@ void DramMemory::Arrive(Progress& p, uint32_t channel, uint64_t when_ps) {
   r.bank_group = where.bank_group;
   r.tag = static_cast<uint32_t>(p.slot);
   r.is_write = p.is_write;
+  pick_ps_[channel] = channels_[channel].NextPickPs();
   window_ps_[p.slot] = kUnknown;
   p.now_ps = when_ps;
   p.slot = p.slot + 1 == window_ps_.size() ? 0 : p.slot + 1;
@@ -134,6 +142,7 @@ void DramMemory::Arrive(Progress& p, uint32_t channel, uint64_t when_ps) {
 
 void DramMemory::PickOn(Progress& p, size_t channel, uint64_t when_ps) {
   const DramPick pick = channels_[channel].Pick();
+  pick_ps_[channel] = channels_[channel].NextPickPs();
   window_ps_[pick.tag] = pick.times.done_ps;
   p.done_ps = std::max(p.done_ps, pick.times.done_ps);
   p.now_ps = when_ps;
@@ -151,17 +160,14 @@ uint64_t DramMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, u
   p.is_write = is_write;
   const uint64_t window = static_cast<uint64_t>(std::max<int64_t>(1, max_outstanding));
   window_ps_.assign(static_cast<size_t>(std::min(window, p.count)), start_ps);
+  uint32_t next_channel = ChannelOf(p);
   while (p.picked < p.count) {
-    uint32_t next_channel = 0;
-    uint64_t arrive_ps = kUnknown;
-    if (p.arrived < p.count) {
-      next_channel = map_.ChannelOf(NextAddress(p));
-      arrive_ps = ArrivalPs(p, next_channel);
-    }
+    const uint64_t arrive_ps = p.arrived < p.count ? ArrivalPs(p, next_channel) : kUnknown;
     uint64_t pick_ps = kUnknown;
     const size_t channel = EarliestPick(pick_ps);
     if (arrive_ps != kUnknown && arrive_ps <= pick_ps) {
       Arrive(p, next_channel, arrive_ps);
+      next_channel = ChannelOf(p);
     } else {
       PickOn(p, channel, pick_ps);
     }
