@@ -53,21 +53,19 @@ size_t Utf8SequenceLength(std::string_view s, size_t i) {
   return length;
 }
 
+// A bad byte at 0-based `index` of a line.
+LineError BadByte(const std::string& what, size_t index) {
+  return LineError{"", what + " at column " + std::to_string(index + 1) + " (binary data?)", true};
+}
+
 // Rejects NUL and other control bytes (tab allowed) and invalid UTF-8.
 void CheckText(std::string_view line) {
   for (size_t i = 0; i < line.size();) {
     const unsigned char c = static_cast<unsigned char>(line[i]);
-    const std::string column = std::to_string(i + 1);
-    if (c == 0) throw LineError{"", "NUL byte at column " + column + " (binary data?)", true};
-    if ((c < ' ' && c != '\t') || c == 0x7f) {
-      throw LineError{
-          "", "control byte " + std::to_string(c) + " at column " + column + " (binary data?)",
-          true};
-    }
+    if (c == 0) throw BadByte("NUL byte", i);
+    if ((c < ' ' && c != '\t') || c == 0x7f) throw BadByte("control byte " + std::to_string(c), i);
     const size_t length = Utf8SequenceLength(line, i);
-    if (length == 0) {
-      throw LineError{"", "invalid UTF-8 at column " + column + " (binary data?)", true};
-    }
+    if (length == 0) throw BadByte("invalid UTF-8", i);
     i += length;
   }
 }
