@@ -31,8 +31,8 @@ const Schema& ModelSchema() {
   static const Schema kSchema = {
       {"name", "layers", "width", "heads", "kv_heads", "head_dim", "ffn.width", "ffn.kind",
        "ffn.activation", "vocab", "tied_embeddings", "precision.attention", "precision.ffn",
-       "precision.embedding", "precision.head", "precision.norm_bits",
-       "precision.activation_bits", "precision.kv_bits", "weight_zero_fraction"},
+       "precision.embedding", "precision.head", "precision.norm_bits", "precision.activation_bits",
+       "precision.kv_bits", "weight_zero_fraction"},
       {}};
   return kSchema;
 }
@@ -83,9 +83,9 @@ void ReadPrecision(const Section& p, ModelConfig& m) {
 
 void CheckModelShape(const Section& top, const ModelConfig& m) {
   if (m.kv_heads > m.heads || m.heads % m.kv_heads != 0) {
-    top.FailAtAny({"kv_heads", "heads"},
-                  "kv_heads (" + std::to_string(m.kv_heads) + ") must divide heads (" +
-                      std::to_string(m.heads) + ")");
+    top.FailAtAny({"kv_heads", "heads"}, "kv_heads (" + std::to_string(m.kv_heads) +
+                                             ") must divide heads (" + std::to_string(m.heads) +
+                                             ")");
   }
   if (m.heads * m.head_dim > kMaxHeadWidthRatio * m.width) {
     top.FailAtAny({"head_dim", "heads", "width"},
@@ -116,8 +116,8 @@ ModelConfig ReadModel(const Document& doc) {
 
 const std::vector<std::string>& TimingKeys() {
   static const std::vector<std::string> kKeys = {
-      "tCK_ns", "CL",     "CWL",    "tRCD",   "tRP",   "tRAS", "tRC",
-      "tCCD_S", "tCCD_L", "tRRD_S", "tRRD_L", "tFAW",  "tWR",  "tWTR_S",
+      "tCK_ns", "CL",     "CWL",    "tRCD",   "tRP",         "tRAS", "tRC",
+      "tCCD_S", "tCCD_L", "tRRD_S", "tRRD_L", "tFAW",        "tWR",  "tWTR_S",
       "tWTR_L", "tRTP",   "tRFC",   "tREFI",  "burst_length"};
   return kKeys;
 }
@@ -125,15 +125,37 @@ const std::vector<std::string>& TimingKeys() {
 const Schema& ArchSchema() {
   static const Schema kSchema = [] {
     Schema s;
-    s.leaves = {"name", "clock.core_mhz", "array.kind", "array.trees", "array.fan_in",
-                "array.accumulator_bits", "array.register_cut", "array.zero_gating",
-                "packing.format", "packing.decoder_bytes_per_cycle", "vector.lanes",
-                "vector.special_per_cycle", "vector.pipeline_cycles", "sram.capacity_kib",
-                "sram.banks", "sram.bank_width_bytes", "sram.ports", "dma.max_outstanding",
-                "dma.setup_cycles", "dram.preset", "dram.channels", "dram.bus_width_bits",
-                "dram.bank_groups", "dram.banks_per_group", "dram.row_bytes",
-                "dram.queue_depth", "dram.page_policy", "dram.address_map",
-                "dram.ideal_latency_ns", "dram.ideal_bandwidth_gbps", "energy.node",
+    s.leaves = {"name",
+                "clock.core_mhz",
+                "array.kind",
+                "array.trees",
+                "array.fan_in",
+                "array.accumulator_bits",
+                "array.register_cut",
+                "array.zero_gating",
+                "packing.format",
+                "packing.decoder_bytes_per_cycle",
+                "vector.lanes",
+                "vector.special_per_cycle",
+                "vector.pipeline_cycles",
+                "sram.capacity_kib",
+                "sram.banks",
+                "sram.bank_width_bytes",
+                "sram.ports",
+                "dma.max_outstanding",
+                "dma.setup_cycles",
+                "dram.preset",
+                "dram.channels",
+                "dram.bus_width_bits",
+                "dram.bank_groups",
+                "dram.banks_per_group",
+                "dram.row_bytes",
+                "dram.queue_depth",
+                "dram.page_policy",
+                "dram.address_map",
+                "dram.ideal_latency_ns",
+                "dram.ideal_bandwidth_gbps",
+                "energy.node",
                 "energy.dram_pj_per_bit"};
     for (const std::string& t : TimingKeys()) s.leaves.push_back("dram.timing." + t);
     s.open_maps = {"energy.overrides"};
@@ -215,8 +237,8 @@ void ReadDma(const Section& s, DmaConfig& d) {
 
 void ReadTiming(const Section& s, DramTiming& t) {
   s.ReadReal("tCK_ns", kTckNs, t.tCK_ns);
-  int64_t* const fields[] = {&t.CL,     &t.CWL,    &t.tRCD,   &t.tRP,    &t.tRAS,   &t.tRC,
-                             &t.tCCD_S, &t.tCCD_L, &t.tRRD_S, &t.tRRD_L, &t.tFAW,   &t.tWR,
+  int64_t* const fields[] = {&t.CL,     &t.CWL,    &t.tRCD,   &t.tRP,    &t.tRAS, &t.tRC,
+                             &t.tCCD_S, &t.tCCD_L, &t.tRRD_S, &t.tRRD_L, &t.tFAW, &t.tWR,
                              &t.tWTR_S, &t.tWTR_L, &t.tRTP,   &t.tRFC,   &t.tREFI};
   for (size_t i = 0; i < std::size(fields); ++i) {
     s.ReadInt(TimingKeys()[i + 1], kDramCycles, *fields[i]);  // TimingKeys()[0] is tCK_ns
@@ -230,12 +252,13 @@ std::string Cycles(int64_t v) { return std::to_string(v); }
 // common practice for the bank-group pairs).
 void CheckTiming(const Section& s, const DramTiming& t) {
   if (t.tRAS < t.tRCD) {
-    s.FailAtAny({"tRAS", "tRCD"}, "tRAS (" + Cycles(t.tRAS) + ") must be at least tRCD (" +
-                                      Cycles(t.tRCD) + ")");
+    s.FailAtAny({"tRAS", "tRCD"},
+                "tRAS (" + Cycles(t.tRAS) + ") must be at least tRCD (" + Cycles(t.tRCD) + ")");
   }
   if (t.tRC < t.tRAS + t.tRP) {
-    s.FailAtAny({"tRC", "tRAS", "tRP"}, "tRC (" + Cycles(t.tRC) + ") must be at least tRAS + tRP (" +
-                                            Cycles(t.tRAS + t.tRP) + ")");
+    s.FailAtAny(
+        {"tRC", "tRAS", "tRP"},
+        "tRC (" + Cycles(t.tRC) + ") must be at least tRAS + tRP (" + Cycles(t.tRAS + t.tRP) + ")");
   }
   if (t.tREFI <= t.tRFC) {
     s.FailAtAny({"tREFI", "tRFC"}, "tREFI (" + Cycles(t.tREFI) + ") must be greater than tRFC (" +
@@ -259,8 +282,8 @@ void ReadAddressMap(const Section& s, std::vector<AddressField>& map) {
   for (size_t i = 0; i < names.size(); ++i) {
     const auto n = std::count(indices.begin(), indices.end(), static_cast<int>(i));
     if (n != 1) {
-      s.FailAt("address_map", rule + "; '" + names[i] + "' appears " + std::to_string(n) +
-                                  " times");
+      s.FailAt("address_map",
+               rule + "; '" + names[i] + "' appears " + std::to_string(n) + " times");
     }
   }
   map.clear();
@@ -326,9 +349,10 @@ ArchConfig ReadArch(const Document& doc) {
   return a;
 }
 
+// `flag_prefix` names the file kind as the command line's --set does.
 Document Parse(const std::string& text, const std::string& source, const Schema& schema,
-               const ConfigOverrides& overrides) {
-  Document doc(text, source, schema);
+               const std::string& flag_prefix, const ConfigOverrides& overrides) {
+  Document doc(text, source, schema, flag_prefix);
   doc.ApplyOverrides(overrides);
   return doc;
 }
@@ -336,9 +360,9 @@ Document Parse(const std::string& text, const std::string& source, const Schema&
 // ------------------------------------------------------------- workload
 
 // Caps on a workload (docs/config-reference.md).
-constexpr int64_t kMaxPrefillTokens = 1 << 20;   // 1,048,576
-constexpr int64_t kMaxDecodeTokens = 1 << 20;    // 1,048,576
-constexpr int64_t kMaxContextTokens = 1 << 24;   // 16,777,216
+constexpr int64_t kMaxPrefillTokens = 1 << 20;  // 1,048,576
+constexpr int64_t kMaxDecodeTokens = 1 << 20;   // 1,048,576
+constexpr int64_t kMaxContextTokens = 1 << 24;  // 16,777,216
 constexpr int64_t kMaxBatch = 4096;
 // Largest operation count a run may need; 64-bit counters hold 1.8e19, so
 // this leaves a factor of ten for sums and products of counters.
@@ -357,8 +381,10 @@ long double EstimateRunOps(const WorkloadConfig& w, const ModelConfig& m) {
   const long double layer_weights =
       4.0L * m.width * m.heads * m.head_dim + 3.0L * m.width * m.ffn_width;
   const long double weights = layer_weights * m.layers + 2.0L * m.vocab * m.width;
-  const long double tokens = static_cast<long double>(w.batch) * (w.prefill_tokens + w.decode_tokens);
-  const long double context = static_cast<long double>(w.context_tokens) + w.prefill_tokens + w.decode_tokens;
+  const long double tokens =
+      static_cast<long double>(w.batch) * (w.prefill_tokens + w.decode_tokens);
+  const long double context =
+      static_cast<long double>(w.context_tokens) + w.prefill_tokens + w.decode_tokens;
   const long double attention = 4.0L * m.layers * m.heads * m.head_dim * context;
   return tokens * (2.0L * weights + attention);
 }
@@ -367,12 +393,12 @@ long double EstimateRunOps(const WorkloadConfig& w, const ModelConfig& m) {
 
 ModelConfig LoadModelText(const std::string& text, const std::string& source_name,
                           const ConfigOverrides& overrides) {
-  return ReadModel(Parse(text, source_name, ModelSchema(), overrides));
+  return ReadModel(Parse(text, source_name, ModelSchema(), "model.", overrides));
 }
 
 ArchConfig LoadArchText(const std::string& text, const std::string& source_name,
                         const ConfigOverrides& overrides) {
-  return ReadArch(Parse(text, source_name, ArchSchema(), overrides));
+  return ReadArch(Parse(text, source_name, ArchSchema(), "arch.", overrides));
 }
 
 ModelConfig LoadModelFile(const std::string& path, const ConfigOverrides& overrides) {
@@ -397,8 +423,9 @@ void ValidateWorkload(const WorkloadConfig& workload, const ModelConfig& model) 
   CheckFlag("--context", workload.context_tokens, 0, kMaxContextTokens);
   CheckFlag("--batch", workload.batch, 1, kMaxBatch);
   if (workload.prefill_tokens == 0 && workload.decode_tokens == 0) {
-    throw UsageError("--prefill/--decode: nothing to simulate; give at least one token of "
-                     "prefill or decode");
+    throw UsageError(
+        "--prefill/--decode: nothing to simulate; give at least one token of "
+        "prefill or decode");
   }
   const long double ops = EstimateRunOps(workload, model);
   if (ops > kMaxRunOps) {

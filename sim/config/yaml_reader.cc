@@ -202,7 +202,6 @@ bool ParseReal(const std::string& text, double& out) {
   return result.ec == std::errc() && result.ptr == last && std::isfinite(out);
 }
 
-
 }  // namespace
 
 std::string ReadConfigFile(const std::string& path) {
@@ -214,8 +213,9 @@ std::string ReadConfigFile(const std::string& path) {
   if (!in) throw InputError(path, 0, "", "cannot open file");
   const auto size = std::filesystem::file_size(path, ec);
   if (!ec && size > static_cast<uintmax_t>(kMaxYamlBytes)) {
-    throw InputError(path, 0, "", "file is larger than 1 MiB (" + std::to_string(size) +
-                                      " bytes); a config file is far smaller");
+    throw InputError(path, 0, "",
+                     "file is larger than 1 MiB (" + std::to_string(size) +
+                         " bytes); a config file is far smaller");
   }
   std::ostringstream text;
   text << in.rdbuf();
@@ -260,8 +260,9 @@ std::string NearestWord(const std::string& word, const std::vector<std::string>&
 
 // ---------------------------------------------------------------- Document
 
-Document::Document(const std::string& text, std::string source, const Schema& schema)
-    : source_(std::move(source)), schema_(schema) {
+Document::Document(const std::string& text, std::string source, const Schema& schema,
+                   std::string flag_prefix)
+    : source_(std::move(source)), schema_(schema), flag_prefix_(std::move(flag_prefix)) {
   if (static_cast<int64_t>(text.size()) > kMaxYamlBytes) {
     throw InputError(source_, 0, "", "text is larger than 1 MiB; a config file is far smaller");
   }
@@ -280,9 +281,9 @@ Document::Document(const std::string& text, std::string source, const Schema& sc
 
 Error Document::Fail(const std::string& path, int line, const std::string& message) const {
   for (auto it = overridden_.rbegin(); it != overridden_.rend(); ++it) {
-    if (*it == path) return InputError(source_, 0, "--set " + path, message);
+    if (*it == path) return InputError(source_, 0, Flag(path), message);
     if (StartsWith(path, *it + ".")) {
-      return InputError(source_, 0, "--set " + *it, path + ": " + message);
+      return InputError(source_, 0, Flag(*it), path + ": " + message);
     }
   }
   return InputError(source_, line, path, message);
@@ -295,10 +296,10 @@ void Document::ApplyOverrides(const ConfigOverrides& overrides) {
 void Document::CheckOverrideKey(const std::string& key) const {
   const std::vector<std::string> parts = SplitPath(key);
   const bool well_formed =
-      !parts.empty() && std::none_of(parts.begin(), parts.end(),
-                                     [](const std::string& p) { return p.empty(); });
+      !parts.empty() &&
+      std::none_of(parts.begin(), parts.end(), [](const std::string& p) { return p.empty(); });
   if (!well_formed) {
-    throw InputError(source_, 0, "--set " + key, "malformed key path; expected e.g. array.trees");
+    throw InputError(source_, 0, Flag(key), "malformed key path; expected e.g. array.trees");
   }
   const std::string parent = key.substr(0, key.size() - parts.back().size());
   const bool in_open_map =
@@ -314,14 +315,17 @@ void Document::CheckOverrideKey(const std::string& key) const {
       if (LastPart(leaf) == parts.back()) suggestion = leaf;
     }
   }
-  throw InputError(source_, 0, "--set " + key,
-                   suggestion.empty() ? "unknown key"
-                                      : "unknown key; did you mean '" + suggestion + "'?");
+  throw InputError(source_, 0, Flag(key),
+                   suggestion.empty()
+                       ? "unknown key"
+                       : "unknown key; did you mean '" + flag_prefix_ + suggestion + "'?");
 }
+
+std::string Document::Flag(const std::string& key) const { return "--set " + flag_prefix_ + key; }
 
 void Document::ApplyOne(const ConfigOverride& entry) {
   CheckOverrideKey(entry.key);
-  const std::string flag = "--set " + entry.key;
+  const std::string flag = Flag(entry.key);
   const FailFn fail = [&](int, const std::string& message) {
     return InputError(source_, 0, flag, message);
   };
@@ -377,9 +381,8 @@ void Section::CheckKeys() const {
     if (Contains(known, e.key)) continue;
     const std::string suggestion = NearestWord(e.key, known);
     throw doc_->Fail(PathOf(e.key), e.line,
-                     suggestion.empty()
-                         ? "unknown key; known keys here: " + JoinList(known)
-                         : "unknown key; did you mean '" + suggestion + "'?");
+                     suggestion.empty() ? "unknown key; known keys here: " + JoinList(known)
+                                        : "unknown key; did you mean '" + suggestion + "'?");
   }
 }
 
@@ -425,7 +428,8 @@ void Section::ReadInt(const std::string& key, const IntRule& rule, int64_t& fiel
   if (!e) return;
   const std::string text = PlainScalar(*e, DescribeRule(rule));
   int64_t v = 0;
-  if (!ParseInt(text, v)) FailAt(key, "must be " + DescribeRule(rule) + ", got " + ShowValue(e->value));
+  if (!ParseInt(text, v))
+    FailAt(key, "must be " + DescribeRule(rule) + ", got " + ShowValue(e->value));
   if (v < rule.lo && rule.what) FailAt(key, std::string("must be ") + rule.what + ", got " + text);
   if (v > rule.hi && rule.unit) {
     FailAt(key, "must be at most " + std::to_string(rule.hi) + " " + rule.unit + ", got " + text);
@@ -470,7 +474,8 @@ void Section::ReadReal(const std::string& key, const RealRule& rule, double& fie
   const std::string text = PlainScalar(*e, DescribeRule(rule));
   double v = 0.0;
   if (!ParseReal(text, v)) {
-    FailAt(key, "must be a finite " + DescribeRule(rule).substr(2) + ", got " + ShowValue(e->value));
+    FailAt(key,
+           "must be a finite " + DescribeRule(rule).substr(2) + ", got " + ShowValue(e->value));
   }
   const bool below = rule.lo_open ? v <= rule.lo : v < rule.lo;
   const bool above = rule.hi_open ? v >= rule.hi : v > rule.hi;
@@ -506,8 +511,8 @@ int Section::ReadChoice(const std::string& key, const std::vector<std::string>& 
   if (!e->value.IsScalar()) FailAt(key, "must be " + expected + ", got " + ShowValue(e->value));
   const auto it = std::find(names.begin(), names.end(), e->value.Scalar());
   if (it == names.end()) {
-    FailAt(key, "must be " + expected + "; got '" + e->value.Scalar().substr(0, kMaxShownValueChars) +
-                    "'");
+    FailAt(key, "must be " + expected + "; got '" +
+                    e->value.Scalar().substr(0, kMaxShownValueChars) + "'");
   }
   return static_cast<int>(it - names.begin());
 }
@@ -521,8 +526,8 @@ bool Section::ReadNameList(const std::string& key, const std::vector<std::string
   indices.clear();
   for (size_t i = 0; i < e->value.size(); ++i) {
     const YAML::Node item = e->value[i];
-    const auto it = item.IsScalar() ? std::find(names.begin(), names.end(), item.Scalar())
-                                    : names.end();
+    const auto it =
+        item.IsScalar() ? std::find(names.begin(), names.end(), item.Scalar()) : names.end();
     if (it == names.end()) {
       FailAt(key, "entry " + std::to_string(i + 1) + " must be one of " + JoinList(names) +
                       "; got " + ShowValue(item));
@@ -539,9 +544,8 @@ void Section::ReadNumberMap(const std::string& key, const RealRule& rule,
   for (const Entry& e : map.entries_) {
     if (!Contains(known, e.key)) {
       const std::string suggestion = NearestWord(e.key, known);
-      map.FailAt(e.key, suggestion.empty()
-                            ? "unknown entry; known: " + JoinList(known)
-                            : "unknown entry; did you mean '" + suggestion + "'?");
+      map.FailAt(e.key, suggestion.empty() ? "unknown entry; known: " + JoinList(known)
+                                           : "unknown entry; did you mean '" + suggestion + "'?");
     }
     double v = 0.0;
     map.ReadReal(e.key, rule, v);

@@ -49,12 +49,15 @@ int EditDistance(const std::string& a, const std::string& b);
 std::string NearestWord(const std::string& word, const std::vector<std::string>& candidates);
 
 // A parsed, guarded document plus the overrides applied to it. Messages for
-// values that came from an override name "--set KEY" instead of a line.
+// values that came from an override name "--set PREFIX.KEY" instead of a line.
 class Document {
  public:
   // Parses `text`; throws on syntax errors, guards, or a top level that is
   // not a map. An empty document is an error.
-  Document(const std::string& text, std::string source, const Schema& schema);
+  // `flag_prefix` is how the command line names keys of this file kind
+  // ("arch." or "model."), so override messages read "--set arch.array.trees".
+  Document(const std::string& text, std::string source, const Schema& schema,
+           std::string flag_prefix = "");
 
   // Replaces or creates each key path with its value (parsed as YAML), in
   // order. Throws for a key path not in the schema, with a suggestion.
@@ -69,10 +72,12 @@ class Document {
 
  private:
   void ApplyOne(const ConfigOverride& override_entry);
+  std::string Flag(const std::string& key) const;  // "--set " + flag_prefix + key
   void CheckOverrideKey(const std::string& key) const;
 
   std::string source_;
   const Schema& schema_;
+  std::string flag_prefix_;
   YAML::Node root_;
   std::vector<std::string> overridden_;  // override key paths, in order applied
 };
@@ -141,7 +146,7 @@ class Section {
  private:
   struct Entry {
     std::string key;
-    int line;          // 1-based line of the key, 0 if unknown (created by an override)
+    int line;  // 1-based line of the key, 0 if unknown (created by an override)
     YAML::Node value;
   };
 
