@@ -10,6 +10,7 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
+#include <iterator>
 #include <limits>
 #include <map>
 #include <sstream>
@@ -221,16 +222,69 @@ AxisRanges RooflineRanges(const RunResult& run, const std::vector<OpClassPoint>&
   return r;
 }
 
+bool Drawable(const OpClassPoint& c, double core_mhz) {
+  return std::isfinite(Intensity(c)) && std::isfinite(AchievedOpsPerSecond(c, core_mhz));
+}
+
+// Point types cycled through by the classes, filled shapes first.
+constexpr int kPointTypes[] = {7, 5, 9, 11, 13, 15, 4, 6, 8, 10, 12, 14, 1, 2, 3};
+
+std::string GnuplotArray(const std::string& name, const std::vector<std::string>& items) {
+  std::string out = "array " + name + "[" + std::to_string(items.size()) + "] = [";
+  for (size_t i = 0; i < items.size(); ++i) out += (i ? ", " : "") + items[i];
+  return out + "]\n";
+}
+
+// The points: one plot clause per drawable class (own key entry and point
+// type), selected from roofline.dat by row number; the rest are listed in a
+// note under the key.
+std::string RooflinePoints(const RunResult& run, const std::vector<OpClassPoint>& classes) {
+  std::vector<std::string> rows, labels, types, undrawn;
+  for (size_t i = 0; i < classes.size(); ++i) {
+    const std::string label = "\"" + Sanitize(classes[i].label) + "\"";
+    if (!Drawable(classes[i], run.core_mhz)) {
+      undrawn.push_back(Sanitize(classes[i].label));
+      continue;
+    }
+    rows.push_back(std::to_string(i));
+    labels.push_back(label);
+    types.push_back(std::to_string(kPointTypes[(labels.size() - 1) % std::size(kPointTypes)]));
+  }
+  std::ostringstream s;
+  if (!undrawn.empty()) {
+    std::string note = "not drawn (no DRAM\\nbytes, ops or cycles):";
+    for (size_t i = 0; i < undrawn.size(); ++i) note += (i % 2 ? ", " : "\\n") + undrawn[i];
+    s << "set label 1 \"" << note << "\" at graph 1.04, graph 0.38 left front\n";
+  }
+  s << "plot ceiling(x) title \"ceiling\" "
+       "with lines lw 2 lc rgb \"#303030\"";
+  if (!rows.empty()) {
+    s << ", \\\n     for [i=1:" << rows.size() << "] \"roofline.dat\" "
+      << "every ::point_row[i]::point_row[i] using 2:3 with points pt point_type[i] ps 1.5 lw 2 "
+         "title point_label[i]";
+  }
+  s << "\n";
+  std::string arrays;
+  if (!rows.empty()) {
+    arrays = "# rows of roofline.dat drawn, from 0 (comment lines do not count)\n" +
+             GnuplotArray("point_row", rows) + GnuplotArray("point_label", labels) +
+             GnuplotArray("point_type", types);
+  }
+  return arrays + s.str();
+}
+
 std::string RooflineScript(const RunResult& run, const std::vector<OpClassPoint>& classes) {
   const AxisRanges r = RooflineRanges(run, classes);
   std::ostringstream s;
   s << ScriptHeader("roofline", "Roofline (Williams, Waterman, Patterson, CACM 2009) of one run",
-                    860, 600)
+                    960, 600)
     << "peak_ops_per_second = " << Num(run.peak_ops_per_second) << "\n"
     << "dram_bytes_per_second = " << Num(run.dram_peak_bytes_per_second) << "\n"
     << "ceiling(x) = (dram_bytes_per_second * x < peak_ops_per_second) ? "
        "dram_bytes_per_second * x : peak_ops_per_second\n"
-    << "set title \"Roofline: " << RunTitle(run) << "\"\n"
+    << "set title \"Roofline: " << RunTitle(run) << "\\nceiling = min(peak "
+    << Num(run.peak_ops_per_second) << " ops/s, DRAM " << Num(run.dram_peak_bytes_per_second)
+    << " B/s x intensity)\"\n"
     << "set logscale xy\n"
     << "set xrange [" << Num(r.x_min) << ":" << Num(r.x_max) << "]\n"
     << "set yrange [" << Num(r.y_min) << ":" << Num(r.y_max) << "]\n"
@@ -238,13 +292,9 @@ std::string RooflineScript(const RunResult& run, const std::vector<OpClassPoint>
     << "set xlabel \"operational intensity (ops per DRAM byte)\"\n"
     << "set ylabel \"achieved ops per second\"\n"
     << "set grid\n"
-    << "set key top left\n"
+    << "set key outside right top\n"
     << "set samples 1000\n"
-    << "plot ceiling(x) title \"attainable: min(peak, bandwidth x intensity)\" "
-       "with lines lw 2 lc rgb \"#303030\", \\\n"
-    << "     \"roofline.dat\" using 2:3 title \"op classes\" with points pt 7 ps 1.3 "
-       "lc rgb \"#1f6fb4\", \\\n"
-    << "     \"roofline.dat\" using 2:3:1 with labels left offset char 1,0.5 notitle\n";
+    << RooflinePoints(run, classes);
   return s.str();
 }
 
