@@ -119,6 +119,19 @@ void ApplyIdeal(DramConfig& d) {
   d.ideal_bandwidth_gbps = 25.6;  // one DDR4-3200 channel (JESD79-4; H)
 }
 
+// Resets the fields a preset owns, so that the result does not depend on
+// what `dram` held before (e.g. switching an LPDDR5 config to ideal).
+void ResetPresetFields(DramConfig& dram) {
+  const DramConfig fresh;
+  dram.bus_width_bits = fresh.bus_width_bits;
+  dram.bank_groups = fresh.bank_groups;
+  dram.banks_per_group = fresh.banks_per_group;
+  dram.row_bytes = fresh.row_bytes;
+  dram.timing = fresh.timing;
+  dram.ideal_latency_ns = fresh.ideal_latency_ns;
+  dram.ideal_bandwidth_gbps = fresh.ideal_bandwidth_gbps;
+}
+
 }  // namespace
 
 const std::vector<std::string>& DramPresetNames() {
@@ -134,17 +147,19 @@ bool IsDramPreset(const std::string& name) {
 }
 
 void ApplyDramPreset(const std::string& preset, DramConfig& dram) {
+  if (!IsDramPreset(preset)) {
+    throw Error(ExitCode::kBadInput, "dram.preset: unknown preset '" + preset +
+                                         "'; allowed: ddr4-3200, lpddr5-6400, hbm2e, ideal");
+  }
+  ResetPresetFields(dram);
   if (preset == "ddr4-3200") {
     ApplyDdr4_3200(dram);
   } else if (preset == "lpddr5-6400") {
     ApplyLpddr5_6400(dram);
   } else if (preset == "hbm2e") {
     ApplyHbm2e(dram);
-  } else if (preset == "ideal") {
-    ApplyIdeal(dram);
   } else {
-    throw Error(ExitCode::kBadInput, "dram.preset: unknown preset '" + preset +
-                                         "'; allowed: ddr4-3200, lpddr5-6400, hbm2e, ideal");
+    ApplyIdeal(dram);
   }
   dram.preset = preset;
 }

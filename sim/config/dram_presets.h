@@ -4,8 +4,10 @@
 // ApplyDramPreset (declared in config/config_loader.h) is defined beside the
 // preset tables in dram_presets.cc. A preset fills the per-channel
 // organisation (bus width, bank groups, banks, row size) and the JEDEC
-// timing; it leaves channel count, queue depth, page policy and address map
-// alone, because those are system choices, not properties of the device.
+// timing (after resetting those fields to the struct defaults, so the result
+// does not depend on an earlier preset); it leaves channel count, queue
+// depth, page policy and address map alone, because those are system
+// choices, not properties of the device.
 #pragma once
 
 #include <cstdint>

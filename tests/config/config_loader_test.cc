@@ -255,6 +255,16 @@ TEST(DramPresets, EveryPresetPassesTheLoaderChecks) {
   }
 }
 
+TEST(DramPresets, ResultDoesNotDependOnWhatWasThereBefore) {
+  DramConfig switched = Preset("lpddr5-6400", 4);
+  ApplyDramPreset("ideal", switched);
+  const DramConfig fresh = Preset("ideal", 4);
+  EXPECT_EQ(switched.bus_width_bits, fresh.bus_width_bits);
+  EXPECT_EQ(switched.row_bytes, fresh.row_bytes);
+  EXPECT_EQ(switched.timing.tRCD, fresh.timing.tRCD);
+  EXPECT_EQ(switched.channels, 4);  // a system choice, left alone
+}
+
 TEST(DramPresets, UnknownPresetListsTheAllowedOnes) {
   DramConfig d;
   ExpectBadInput([&] { ApplyDramPreset("ddr5-4800", d); },
