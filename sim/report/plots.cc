@@ -129,13 +129,22 @@ std::string RunGnuplot(const std::string& dir, const std::string& script, const 
   return OneLine(err);
 }
 
+// WriteFileAtomically, its error prefixed with "--plots DIR: ".
+void WriteInPlotDir(const std::string& dir, const std::string& path, const std::string& content) {
+  try {
+    WriteFileAtomically(path, content);
+  } catch (const Error& e) {
+    throw Error(e.code(), PlotError(dir, e.what()));
+  }
+}
+
 // Writes NAME.dat and NAME.gp, renders NAME.svg.tmp and renames it to
 // NAME.svg. On failure removes the temporary svg and throws.
 void RenderPlot(const std::string& dir, const std::string& name, const std::string& data,
                 const std::string& script) {
   const fs::path base = fs::path(dir) / name;
-  WriteFileAtomically(base.string() + ".dat", data);
-  WriteFileAtomically(base.string() + ".gp", script);
+  WriteInPlotDir(dir, base.string() + ".dat", data);
+  WriteInPlotDir(dir, base.string() + ".gp", script);
   const std::string svg_tmp = name + ".svg.tmp";
   const fs::path tmp_path = fs::path(dir) / svg_tmp;
   std::string failure = RunGnuplot(dir, name + ".gp", svg_tmp);

@@ -226,6 +226,17 @@ TEST(EnergyModel, SramAccessIsMonotonicAndLogLogBetweenPoints) {
   EXPECT_NEAR(SramAccessPj(t, 16 * 1024.0, 8.0), std::sqrt(10.0 * 20.0), 1e-9);
 }
 
+TEST(EnergyModel, SramAccessExtrapolatesWithEndSegmentSlopes) {
+  EnergyTable t = BuiltinEnergyTable("45nm");
+  // From the Horowitz ISSCC 2014 points (M): 8 KB -> 32 KB doubles the energy
+  // over 4x the size (slope 1/2 in log-log), so 4 KiB costs 10 / sqrt(2) pJ;
+  // 32 KB -> 1 MB is 5x over 32x (slope ln 5 / ln 32), so 2 MiB costs
+  // 100 * 2^(ln 5 / ln 32) pJ.
+  EXPECT_NEAR(SramAccessPj(t, 4 * 1024.0, 8.0), 10.0 / std::sqrt(2.0), 1e-9);
+  EXPECT_NEAR(SramAccessPj(t, 2048 * 1024.0, 8.0),
+              100.0 * std::pow(2.0, std::log(5.0) / std::log(32.0)), 1e-9);
+}
+
 TEST(EnergyModel, UnknownOverrideNameListsKnownEntries) {
   EnergyConfig energy;
   energy.overrides_pj["int8_ad"] = 0.01;

@@ -184,6 +184,19 @@ TEST_F(Plots, MissingGnuplotIsBadInputAndLeavesNoSvg) {
   EXPECT_FALSE(AnyTemporaryLeft());
 }
 
+TEST_F(Plots, DirectoryThatCannotBeMadeIsBadInput) {
+  fs::create_directories(dir_.parent_path());
+  std::ofstream(dir_.parent_path() / "blocker") << "a file, not a directory";
+  const std::string bad = (dir_.parent_path() / "blocker" / "plots").string();
+  try {
+    WriteRunPlots(bad, SmallRun(), SmallEnergy());
+    ADD_FAILURE() << "expected tritsim::Error";
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ExitCode::kBadInput);
+    EXPECT_EQ(std::string(e.what()).rfind("--plots " + bad + ": ", 0), 0u) << e.what();
+  }
+}
+
 TEST_F(Plots, OpClassLabels) {
   TraceOp op;
   op.kind = OpKind::kGemm;
