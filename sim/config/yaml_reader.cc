@@ -416,8 +416,10 @@ void Section::FailAtAny(const std::vector<std::string>& keys, const std::string&
   FailAt(keys.front(), message);
 }
 
+// Numbers and booleans must be plain, untagged scalars ("?" is yaml-cpp's
+// tag of a plain scalar; quoted ones get "!", explicit tags their own).
 std::string Section::PlainScalar(const Entry& e, const std::string& expected) const {
-  if (!e.value.IsScalar() || e.value.Tag() == "!") {
+  if (!e.value.IsScalar() || e.value.Tag() != "?") {
     FailAt(e.key, "must be " + expected + ", got " + ShowValue(e.value));
   }
   return e.value.Scalar();
