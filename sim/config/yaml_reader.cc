@@ -299,7 +299,8 @@ void Document::CheckOverrideKey(const std::string& key) const {
       !parts.empty() &&
       std::none_of(parts.begin(), parts.end(), [](const std::string& p) { return p.empty(); });
   if (!well_formed) {
-    throw InputError(source_, 0, Flag(key), "malformed key path; expected e.g. array.trees");
+    throw InputError(source_, 0, Flag(key),
+                     "malformed key path; expected names joined by single dots");
   }
   const std::string parent = key.substr(0, key.size() - parts.back().size());
   const bool in_open_map =
