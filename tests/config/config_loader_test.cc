@@ -70,6 +70,19 @@ TEST(ConfigLoader, AllDemoDesignPointsLoad) {
   }
 }
 
+TEST(ConfigLoader, DemoDesignPointsPeakAtTheirStandardsBandwidth) {
+  const auto peak = [](const char* file) {
+    return DramPeakBytesPerSecond(LoadArchFile(SourcePath(std::string("configs/") + file)).dram);
+  };
+  // JESD79-4: one 64-bit DDR4-3200 channel, 25.6 GB/s (H).
+  EXPECT_NEAR(peak("heron-edge-ddr4.yaml"), 25.6e9, 1e-3);
+  // JESD209-5 via REFERENCES.md: 4 x16 LPDDR5-6400 channels, 51.2 GB/s (M).
+  EXPECT_NEAR(peak("finch-phone-lpddr5.yaml"), 51.2e9, 1e-3);
+  // JESD235 family via REFERENCES.md: one HBM2E stack at 3.6 Gb/s, 460.8 GB/s (H).
+  EXPECT_NEAR(peak("osprey-card-hbm2e.yaml"), 460.8e9, 1e-2);
+  EXPECT_NEAR(peak("ideal-memory.yaml"), 25.6e9, 1e-3);  // its stated fixed bandwidth
+}
+
 TEST(ConfigLoader, Condor13bHasThePublishedParameterCount) {
   const ModelConfig m = LoadModelFile(SourcePath("models/condor-13b.yaml"));
   // Touvron et al. 2023: width 5120, 40 layers, FFN 13824, vocab 32000 ->
