@@ -55,24 +55,13 @@ DramChannel::DramChannel(const DramConfig& dram) {
   next_refresh_ps_ = t_.tREFI;
 }
 
-uint64_t DramChannel::AlignUp(uint64_t ps) const {
-  const uint64_t rem = ps % tck_ps_;
-  return rem == 0 ? ps : ps + (tck_ps_ - rem);
-}
-
-uint64_t DramChannel::NextPickPs() const {
-  if (queued_ == 0) return kNever;
-  const uint64_t oldest = queue_[head_].arrival_ps;
-  // pick_ok_ps_ is on a clock edge; only an arrival can be off the grid.
-  return oldest <= pick_ok_ps_ ? pick_ok_ps_ : AlignUp(oldest);
-}
-
 bool DramChannel::IsReadyHit(const DramRequest& r, uint64_t now_ps) const {
   const Bank& b = banks_[r.bank];
   return b.open_row == r.row && b.cas_ok_ps <= now_ps;
 }
 
 size_t DramChannel::ChooseFrFcfs(uint64_t now_ps) const {
+  if (closed_page_) return 0;  // every access auto-precharges: never a row hit
   for (size_t age = 0; age < queued_; ++age) {
     if (IsReadyHit(At(age), now_ps)) return age;
   }

@@ -97,7 +97,12 @@ class DramChannel {
   // When the scheduler will make its next pick: kNever if the queue is
   // empty, else the later of the last pick's first command and the oldest
   // arrival, on a clock edge. Every queued request is eligible then.
-  uint64_t NextPickPs() const;
+  uint64_t NextPickPs() const {
+    if (queued_ == 0) return kNever;
+    const uint64_t oldest = queue_[head_].arrival_ps;
+    // pick_ok_ps_ is on a clock edge; only an arrival can be off the grid.
+    return oldest <= pick_ok_ps_ ? pick_ok_ps_ : AlignUp(oldest);
+  }
 
   // Picks one queued request by FR-FCFS at NextPickPs() and schedules its
   // commands (doing any refresh that falls due first). A request counts as
@@ -150,7 +155,10 @@ class DramChannel {
     return i >= capacity_ ? i - capacity_ : i;
   }
   const DramRequest& At(size_t age) const { return queue_[Slot(age)]; }
-  uint64_t AlignUp(uint64_t ps) const;
+  uint64_t AlignUp(uint64_t ps) const {
+    const uint64_t rem = ps % tck_ps_;
+    return rem == 0 ? ps : ps + (tck_ps_ - rem);
+  }
 
   TimingPs t_{};
   uint64_t tck_ps_ = 1;

@@ -71,6 +71,13 @@ class DramMemory final : public MemorySystem {
   }
   uint64_t ArrivalPs(const Progress& p, uint32_t channel) const;
   size_t EarliestPick(uint64_t& when_ps) const;
+  void RescanEarliestPick();
+  // Refreshes pick_ps_[channel] after a change to that channel's queue.
+  void UpdatePick(size_t channel) {
+    pick_ps_[channel] = channels_[channel].NextPickPs();
+    if (pick_ps_.size() > 1) UpdateEarliestPick(channel);
+  }
+  void UpdateEarliestPick(size_t channel);
   void Arrive(Progress& p, uint32_t channel, uint64_t when_ps);
   void PickOn(Progress& p, size_t channel, uint64_t when_ps);
 
@@ -83,6 +90,8 @@ class DramMemory final : public MemorySystem {
   std::vector<uint64_t> window_ps_;
   // channels_[c].NextPickPs(), kept up to date after every change to c.
   std::vector<uint64_t> pick_ps_;
+  uint64_t min_pick_ps_ = DramChannel::kNever;  // min of pick_ps_ (2+ channels only)
+  size_t min_channel_ = 0;                       // lowest channel holding it
   mutable DramStats total_;
 };
 
@@ -110,17 +119,35 @@ uint64_t DramMemory::ArrivalPs(const Progress& p, uint32_t channel) const {
 
 // The channel whose scheduler picks next and when (ties: lowest channel).
 size_t DramMemory::EarliestPick(uint64_t& when_ps) const {
-  when_ps = pick_ps_[0];
-  if (pick_ps_.size() == 1) return 0;
-  size_t best = 0;
+  if (pick_ps_.size() == 1) {
+    when_ps = pick_ps_[0];
+    return 0;
+  }
+  when_ps = min_pick_ps_;
+  return min_channel_;
+}
+
+void DramMemory::RescanEarliestPick() {
+  min_channel_ = 0;
+  min_pick_ps_ = pick_ps_[0];
   for (size_t c = 1; c < pick_ps_.size(); ++c) {
-    const uint64_t t = pick_ps_[c];
-    if (t < when_ps) {
-      when_ps = t;
-      best = c;
+    if (pick_ps_[c] < min_pick_ps_) {
+      min_pick_ps_ = pick_ps_[c];
+      min_channel_ = c;
     }
   }
-  return best;
+}
+
+// Keeps (min_pick_ps_, min_channel_) the lowest-numbered channel with the
+// earliest pick, rescanning only when the current earliest one moved later.
+void DramMemory::UpdateEarliestPick(size_t channel) {
+  const uint64_t t = pick_ps_[channel];
+  if (t < min_pick_ps_ || (t == min_pick_ps_ && channel < min_channel_)) {
+    min_pick_ps_ = t;
+    min_channel_ = channel;
+  } else if (channel == min_channel_ && t != min_pick_ps_) {
+    RescanEarliestPick();
+  }
 }
 
 // Decodes the next request straight into its channel's queue.
@@ -133,7 +160,7 @@ void DramMemory::Arrive(Progress& p, uint32_t channel, uint64_t when_ps) {
   r.bank_group = where.bank_group;
   r.tag = static_cast<uint32_t>(p.slot);
   r.is_write = p.is_write;
-  pick_ps_[channel] = channels_[channel].NextPickPs();
+  UpdatePick(channel);
   window_ps_[p.slot] = kUnknown;
   p.now_ps = when_ps;
   p.slot = p.slot + 1 == window_ps_.size() ? 0 : p.slot + 1;
@@ -142,7 +169,7 @@ void DramMemory::Arrive(Progress& p, uint32_t channel, uint64_t when_ps) {
 
 void DramMemory::PickOn(Progress& p, size_t channel, uint64_t when_ps) {
   const DramPick pick = channels_[channel].Pick();
-  pick_ps_[channel] = channels_[channel].NextPickPs();
+  UpdatePick(channel);
   window_ps_[pick.tag] = pick.times.done_ps;
   p.done_ps = std::max(p.done_ps, pick.times.done_ps);
   p.now_ps = when_ps;
