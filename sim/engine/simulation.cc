@@ -4,6 +4,7 @@
 
 #include <systemc>
 
+#include "common/atomic_file.h"
 #include "common/error.h"
 #include "hw/accelerator.h"
 
@@ -41,6 +42,7 @@ RunResult RunSimulation(const ArchConfig& arch, TraceSource& trace, const SimOpt
   result.arch_name = arch.name;
   result.model_name = trace.header().model;
   top->Collect(result);
+  if (top->activity()) WriteFileAtomically(options.vcd_path, top->activity()->ToVcd("accelerator"));
   return result;
 }
 

@@ -278,27 +278,28 @@ void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_i
                           std::vector<WorkItem>& out) {
   // Fused attention: scores and probabilities stay on chip (the online-softmax
   // formulation of Dao et al. 2022); K (for scores) or V (for values) of the
-  // whole context streams through the slots once per step.
+  // whole context streams through the slots once per step. The stream is cut
+  // into tiles of whole key vectors (one head, one position, one sequence).
   const uint64_t batch = uint64_t(std::max<int64_t>(1, step.batch));
   const uint64_t context = uint64_t(std::max<int64_t>(1, op.context));
-  const uint64_t key_bytes = batch * BitsToBytes(uint64_t(op.kv_heads) * uint64_t(op.head_dim),
-                                                 double(op.kv_bits));
-  CheckTileFits(op, key_bytes, rates_.slot_bytes, "KV-cache");
-  const uint64_t keys_per_tile = std::min(context, rates_.slot_bytes / key_bytes);
+  const uint64_t vector_bytes = BitsToBytes(uint64_t(op.head_dim), double(op.kv_bits));
+  CheckTileFits(op, vector_bytes, rates_.slot_bytes, "KV-cache");
+  const uint64_t vectors = batch * uint64_t(op.kv_heads) * context;
+  const uint64_t vectors_per_tile = std::min(vectors, rates_.slot_bytes / vector_bytes);
   const uint64_t macs = uint64_t(op.heads) * uint64_t(op.head_dim) * AllRowKeys(op, step);
   const uint64_t lanes = uint64_t(arch_.vector.lanes);
   const uint64_t bank_width = uint64_t(arch_.sram.bank_width_bytes);
   const uint64_t half = op.kind == OpKind::kAttnValues ? kKvLayerStride / 2 : 0;
-  for (uint64_t c0 = 0; c0 < context; c0 += keys_per_tile) {
-    const uint64_t keys = std::min(keys_per_tile, context - c0);
+  for (uint64_t v0 = 0; v0 < vectors; v0 += vectors_per_tile) {
+    const uint64_t count = std::min(vectors_per_tile, vectors - v0);
     WorkItem item;
     item.op_index = op_index;
     item.unit = Unit::kVectorUnit;
     item.load_kind = LoadKind::kKvCache;
-    item.load_address = KvAddress(op) + half + c0 * key_bytes;
-    item.load_bytes = keys * key_bytes;
-    item.load_after_stores = c0 == 0;  // the cache holds this step's appended keys
-    item.vector_macs = ShareOf(macs, c0, c0 + keys, context);
+    item.load_address = KvAddress(op) + half + v0 * vector_bytes;
+    item.load_bytes = count * vector_bytes;
+    item.load_after_stores = v0 == 0;  // the cache holds this step's appended keys
+    item.vector_macs = ShareOf(macs, v0, v0 + count, vectors);
     item.compute_cycles = CeilDiv(item.vector_macs, lanes);
     item.sram_read_accesses = CeilDiv(item.load_bytes, bank_width);
     out.push_back(item);

@@ -12,7 +12,14 @@ Accelerator::Accelerator(sc_core::sc_module_name name, const ArchConfig& arch,
       dma_("dma", arch.dma, period_ps_, *memory_, sram_, uint64_t(arch.sram.bank_width_bytes)),
       tree_array_("tree_array", arch.array, period_ps_, sram_),
       vector_unit_("vector_unit", arch.vector, period_ps_, sram_),
-      sequencer_("sequencer", arch, options, trace, dma_, tree_array_, vector_unit_) {}
+      sequencer_("sequencer", arch, options, trace, dma_, tree_array_, vector_unit_) {
+  if (options.vcd_path.empty()) return;
+  activity_ = std::make_unique<ActivityLog>();
+  tree_array_.TraceActivity(activity_.get(), activity_->AddSignal("tree_array_busy"));
+  vector_unit_.TraceActivity(activity_.get(), activity_->AddSignal("vector_unit_busy"));
+  const int load = activity_->AddSignal("dma_load");
+  dma_.TraceActivity(activity_.get(), load, activity_->AddSignal("dma_store"));
+}
 
 void Accelerator::Collect(RunResult& result) {
   sequencer_.Collect(result);

@@ -32,10 +32,13 @@ class Accelerator : public sc_core::sc_module {
 
   // Everything measured, after the simulation has finished.
   void Collect(RunResult& result);
+  // The --vcd activity log, or null when none was asked for.
+  const ActivityLog* activity() const { return activity_.get(); }
 
  private:
   ArchConfig arch_;
   std::unique_ptr<MemorySystem> memory_;
+  std::unique_ptr<ActivityLog> activity_;
   uint64_t period_ps_;
   Scratchpad sram_;
   DmaEngine dma_;

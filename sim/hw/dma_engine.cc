@@ -53,6 +53,7 @@ void DmaEngine::Transfer(const Job& job) {
     bytes_loaded_ += job.bytes;
     sram_.RecordWrite(start_ps, done_ps, accesses);
   }
+  if (log_) log_->Busy(job.is_write ? store_signal_ : load_signal_, start_ps, done_ps);
   if (done_ps > start_ps) wait(sc_time::from_value(done_ps - start_ps));
   if (job.is_write) sram_.ReadWindow(start_ps, start_ps, accesses);  // counts the reads only
 }

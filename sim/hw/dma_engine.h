@@ -19,6 +19,7 @@
 #include "config/arch_config.h"
 #include "hw/memory_system.h"
 #include "hw/scratchpad.h"
+#include "report/vcd_writer.h"
 
 namespace tritsim {
 
@@ -38,6 +39,12 @@ class DmaEngine : public sc_core::sc_module {
   uint64_t pending_stores() const { return stores_.size() + (busy_is_store_ ? 1 : 0); }
   // For the watchdog: what the engine's thread is doing.
   std::string state() const;
+  // Optional: transfer intervals go to `log` (for --vcd).
+  void TraceActivity(ActivityLog* log, int load_signal, int store_signal) {
+    log_ = log;
+    load_signal_ = load_signal;
+    store_signal_ = store_signal;
+  }
   uint64_t bytes_loaded() const { return bytes_loaded_; }
   uint64_t bytes_stored() const { return bytes_stored_; }
 
@@ -69,6 +76,9 @@ class DmaEngine : public sc_core::sc_module {
   sc_core::sc_event store_done_event_;
   uint64_t bytes_loaded_ = 0;
   uint64_t bytes_stored_ = 0;
+  ActivityLog* log_ = nullptr;
+  int load_signal_ = 0;
+  int store_signal_ = 0;
 };
 
 }  // namespace tritsim

@@ -16,6 +16,7 @@ uint64_t TreeArray::Execute(const WorkItem& item) {
   counts_.weight_uses_zero += item.weight_uses_zero;
   counts_.accumulator_adds += item.accumulator_adds;
   counts_.decoder_bytes += item.decoder_bytes;
+  if (log_) log_->Busy(signal_, now_ps, now_ps + cycles * period_ps_);
   if (cycles) sc_core::wait(sc_core::sc_time::from_value(cycles * period_ps_));
   return conflicts;
 }

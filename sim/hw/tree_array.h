@@ -14,6 +14,7 @@
 #include "engine/run_result.h"
 #include "hw/compute_unit.h"
 #include "hw/scratchpad.h"
+#include "report/vcd_writer.h"
 
 namespace tritsim {
 
@@ -27,6 +28,11 @@ class TreeArray : public sc_core::sc_module, public ComputeUnitIf {
   // Adds this unit's counts into `events`.
   void AddEvents(EventCounts& events) const;
   uint64_t busy_cycles() const { return busy_cycles_; }
+  // Optional: busy intervals go to `log` as `signal` (for --vcd).
+  void TraceActivity(ActivityLog* log, int signal) {
+    log_ = log;
+    signal_ = signal;
+  }
 
  private:
   TreeArrayConfig config_;
@@ -34,6 +40,8 @@ class TreeArray : public sc_core::sc_module, public ComputeUnitIf {
   Scratchpad& sram_;
   uint64_t busy_cycles_ = 0;
   EventCounts counts_;
+  ActivityLog* log_ = nullptr;
+  int signal_ = 0;
 };
 
 }  // namespace tritsim

@@ -15,6 +15,7 @@ uint64_t VectorUnit::Execute(const WorkItem& item) {
   counts_.vector_macs += item.vector_macs;
   counts_.vector_special += item.vector_special;
   counts_.vector_elementwise += item.vector_elementwise;
+  if (log_) log_->Busy(signal_, now_ps, now_ps + cycles * period_ps_);
   if (cycles) sc_core::wait(sc_core::sc_time::from_value(cycles * period_ps_));
   return conflicts;
 }

@@ -13,6 +13,7 @@
 #include "engine/run_result.h"
 #include "hw/compute_unit.h"
 #include "hw/scratchpad.h"
+#include "report/vcd_writer.h"
 
 namespace tritsim {
 
@@ -25,6 +26,11 @@ class VectorUnit : public sc_core::sc_module, public ComputeUnitIf {
 
   void AddEvents(EventCounts& events) const;
   uint64_t busy_cycles() const { return busy_cycles_; }
+  // Optional: busy intervals go to `log` as `signal` (for --vcd).
+  void TraceActivity(ActivityLog* log, int signal) {
+    log_ = log;
+    signal_ = signal;
+  }
 
  private:
   VectorUnitConfig config_;
@@ -32,6 +38,8 @@ class VectorUnit : public sc_core::sc_module, public ComputeUnitIf {
   Scratchpad& sram_;
   uint64_t busy_cycles_ = 0;
   EventCounts counts_;
+  ActivityLog* log_ = nullptr;
+  int signal_ = 0;
 };
 
 }  // namespace tritsim
