@@ -14,6 +14,7 @@ using Args = std::vector<std::string>;
 int InspectCommand(const Args& args);
 int TraceCommand(const Args& args);
 int RunCommand(const Args& args);
+int SweepCommand(const Args& args);
 
 // Overall usage text (subcommands), for `tritsim --help`.
 std::string MainUsage();

@@ -22,6 +22,7 @@ const std::map<std::string, Command>& Commands() {
       {"inspect", tritsim::InspectCommand},
       {"trace", tritsim::TraceCommand},
       {"run", tritsim::RunCommand},
+      {"sweep", tritsim::SweepCommand},
   };
   return commands;
 }

@@ -1,0 +1,44 @@
+// The sweep CSV as an append-only journal: each finished point appends one
+// complete row, so a sweep killed at any moment (even SIGKILL) leaves a file
+// of whole rows plus at most one torn final line, which resume cuts away.
+#pragma once
+
+#include <set>
+#include <string>
+#include <vector>
+
+namespace tritsim {
+
+class SweepJournal {
+ public:
+  // Opens `path` for appending rows under `header`.
+  // - path absent or empty: creates it and writes the header.
+  // - path holds rows and !resume: throws tritsim::Error (kUsage) "PATH
+  //   exists; pass --resume ...", leaving the file untouched.
+  // - resume: reads the file, truncates a torn final line away, checks the
+  //   header equals `header` (else throws kBadInput: the CSV belongs to
+  //   another sweep) and that each row's id is in `known_ids` and appears
+  //   once; their ids become done().
+  SweepJournal(const std::string& path, const std::vector<std::string>& header,
+               const std::set<std::string>& known_ids, bool resume);
+  ~SweepJournal();
+  SweepJournal(const SweepJournal&) = delete;
+  SweepJournal& operator=(const SweepJournal&) = delete;
+
+  // Ids of the points already in the file when it was opened.
+  const std::set<std::string>& done() const { return done_; }
+
+  // Appends one row with a single write(2) on the O_APPEND descriptor, then
+  // fsync(2). Throws tritsim::Error (kBadInput) naming the path on failure.
+  void Append(const std::vector<std::string>& fields);
+
+ private:
+  void AppendLine(const std::string& line);
+  void ResumeFrom(const std::vector<std::string>& header, const std::set<std::string>& known_ids);
+
+  std::string path_;
+  int fd_ = -1;
+  std::set<std::string> done_;
+};
+
+}  // namespace tritsim
