@@ -1,6 +1,7 @@
 // Shard merging. See sweep_merge.h.
 #include "sweep/sweep_merge.h"
 
+#include <algorithm>
 #include <map>
 
 #include "common/error.h"
@@ -11,8 +12,10 @@ namespace {
 
 constexpr size_t kMaxListedIds = 5;  // ids quoted per kind of problem
 
-std::string ListIds(const std::string& what, const std::vector<std::string>& ids) {
+// "N WHAT (id, id, ...)" with the ids in point order, or "" for none.
+std::string ListIds(const std::string& what, std::vector<std::string> ids) {
   if (ids.empty()) return "";
+  std::sort(ids.begin(), ids.end());
   std::string out = std::to_string(ids.size()) + " " + what + " (";
   for (size_t i = 0; i < ids.size() && i < kMaxListedIds; ++i) out += (i ? ", " : "") + ids[i];
   if (ids.size() > kMaxListedIds) out += ", ...";

@@ -127,6 +127,7 @@ std::string ScriptHeader(const std::string& name, const std::string& what) {
     << "set terminal svg size " << kWidthPx << "," << kHeightPx
     << " noenhanced font \"sans,12\" background \"white\"\n"
     << "set output outfile\n"
+    << "set termoption noenhanced  # column names such as tokens_per_second are literal\n"
     << "set grid\n"
     << "set key outside right top\n";
   return s.str();
