@@ -38,6 +38,23 @@ struct EventCounts {
   uint64_t dram_refreshes = 0;     // all-bank refresh commands, summed over channels
 };
 
+// Adds every count of `from` into `into`.
+inline void AddEvents(const EventCounts& from, EventCounts& into) {
+  into.weight_uses += from.weight_uses;
+  into.weight_uses_zero += from.weight_uses_zero;
+  into.accumulator_adds += from.accumulator_adds;
+  into.decoder_bytes += from.decoder_bytes;
+  into.vector_macs += from.vector_macs;
+  into.vector_special += from.vector_special;
+  into.vector_elementwise += from.vector_elementwise;
+  into.sram_reads += from.sram_reads;
+  into.sram_writes += from.sram_writes;
+  into.dram_bytes_read += from.dram_bytes_read;
+  into.dram_bytes_written += from.dram_bytes_written;
+  into.dram_activates += from.dram_activates;
+  into.dram_refreshes += from.dram_refreshes;
+}
+
 struct DramStats {
   uint64_t reads = 0;              // requests (one burst each)
   uint64_t writes = 0;
@@ -65,6 +82,9 @@ struct OpResult {
   uint64_t dram_bytes = 0;         // read + written on behalf of this op
   uint64_t bound_cycles = 0;       // roofline lower bound max(ops/peak, bytes/bandwidth)
   Regime regime = Regime::kMemory; // which term of the bound dominates
+  // Energy events of this op's tiles (DRAM activates and refreshes are not
+  // attributed to ops: they stay in RunResult::events only).
+  EventCounts events;
   double intensity() const { return dram_bytes ? double(ops) / double(dram_bytes) : 0.0; }
 };
 

@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include "common/error.h"
+#include "common/interrupt.h"
 
 namespace tritsim {
 
@@ -83,6 +84,9 @@ void Sequencer::IssueThread() {
 }
 
 void Sequencer::IssueOp(const TraceOp& op, const TraceStep& step) {
+  if (InterruptRequested()) {
+    ThrowInterrupted("while simulating op " + std::to_string(ops_issued_) + " (" + op.name + ")");
+  }
   std::vector<WorkItem> items;
   tiler_.Plan(op, step, ops_issued_, items);
   OpInFlight meta;
@@ -167,7 +171,23 @@ void Sequencer::RunItem(const WorkItem& item) {
   ++free_slots_;
   slot_freed_.notify(sc_core::SC_ZERO_TIME);
   if (item.store_bytes > 0) dma_.PostStore(item.store_address, item.store_bytes);
+  CountItemEvents(item, op.events);
   if (item.last_of_op) RetireOp(op);
+}
+
+void Sequencer::CountItemEvents(const WorkItem& item, EventCounts& e) const {
+  const uint64_t bank_width = uint64_t(arch_.sram.bank_width_bytes);
+  e.weight_uses += item.weight_uses;
+  e.weight_uses_zero += item.weight_uses_zero;
+  e.accumulator_adds += item.accumulator_adds;
+  e.decoder_bytes += item.decoder_bytes;
+  e.vector_macs += item.vector_macs;
+  e.vector_special += item.vector_special;
+  e.vector_elementwise += item.vector_elementwise;
+  e.sram_reads += item.sram_read_accesses + (item.store_bytes + bank_width - 1) / bank_width;
+  e.sram_writes += (item.load_bytes + bank_width - 1) / bank_width;
+  e.dram_bytes_read += item.load_bytes;
+  e.dram_bytes_written += item.store_bytes;
 }
 
 void Sequencer::RetireOp(OpInFlight& op) {
@@ -187,6 +207,7 @@ void Sequencer::RetireOp(OpInFlight& op) {
   result.cycles += span_cycles;
   result.ops += op.ops;
   result.dram_bytes += op.dram_bytes;
+  AddEvents(op.events, result.events);
   result.bound_cycles += uint64_t(std::ceil(std::max(compute_bound, memory_bound) - 1e-9));
   result.regime = compute_bound >= memory_bound ? Regime::kCompute : Regime::kMemory;
   total_ops_ += op.ops;

@@ -59,6 +59,7 @@ class Sequencer : public sc_core::sc_module {
     Unit unit = Unit::kTreeArray;
     Phase phase = Phase::kDecode;
     int64_t step = 0;
+    EventCounts events;
   };
 
   void IssueThread();
@@ -66,6 +67,7 @@ class Sequencer : public sc_core::sc_module {
   void IssueOp(const TraceOp& op, const TraceStep& step);
   void RunItem(const WorkItem& item);
   void RetireOp(OpInFlight& op);
+  void CountItemEvents(const WorkItem& item, EventCounts& events) const;
   void Charge(uint64_t& bucket);
   void AlignToCycle();
   size_t ResultIndex(const TraceOp& op);

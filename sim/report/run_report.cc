@@ -44,6 +44,14 @@ std::string Time(double seconds) {
   return Fixed(seconds * 1e6, 3) + " us";
 }
 
+// Dynamic energy of one layer's own events (no leakage, no DRAM activates
+// or refreshes, which belong to the run as a whole).
+EnergyBreakdown LayerEnergy(const RunReport& r, const EnergyTable& table, const OpResult& layer) {
+  RunResult only;
+  only.events = layer.events;
+  return ComputeEnergyWithTable(r.arch, table, only);
+}
+
 std::string Percent(double fraction) { return Fixed(fraction * 100.0, 1) + "%"; }
 
 }  // namespace
@@ -154,7 +162,9 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                  {"vector_elementwise", e.vector_elementwise}, {"sram_reads", e.sram_reads},
                  {"sram_writes", e.sram_writes}};
   ordered_json layers = ordered_json::array();
+  const EnergyTable table = ResolveEnergyTable(r.arch.energy, r.arch.dram.preset);
   for (const OpResult& layer : run.layers) {
+    const EnergyBreakdown e = LayerEnergy(r, table, layer);
     layers.push_back({{"name", layer.op.name},
                       {"layer", layer.op.layer},
                       {"phase", PhaseName(layer.op.phase)},
@@ -166,7 +176,8 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                       {"intensity_ops_per_byte", layer.intensity()},
                       {"bound_cycles", layer.bound_cycles},
                       {"regime", RegimeName(layer.regime)},
-                      {"roofline_efficiency", Efficiency(layer)}});
+                      {"roofline_efficiency", Efficiency(layer)},
+                      {"energy_joules", e.total_joules()}});
   }
   j["layers"] = layers;
   return j;
@@ -175,20 +186,22 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
 std::string RunCsv(const RunReport& r) {
   std::ostringstream out;
   out << "phase,layer,name,kind,tensor,cycles,seconds,ops,dram_bytes,intensity_ops_per_byte,"
-         "bound_cycles,regime,roofline_efficiency,dram_energy_joules\n";
-  const double dram_pj_per_byte =
-      Ratio(r.energy.dram_joules * 1e12,
-            double(r.run.events.dram_bytes_read + r.run.events.dram_bytes_written));
+         "bound_cycles,regime,roofline_efficiency,energy_joules,arithmetic_joules,sram_joules,"
+         "dram_joules,decoder_joules\n";
+  const EnergyTable table = ResolveEnergyTable(r.arch.energy, r.arch.dram.preset);
   for (const OpResult& layer : r.run.layers) {
-    char line[512];
-    std::snprintf(line, sizeof line, "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g\n",
+    const EnergyBreakdown e = LayerEnergy(r, table, layer);
+    char line[640];
+    std::snprintf(line, sizeof line,
+                  "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g,%.6g,%.6g,%.6g,%.6g\n",
                   PhaseName(layer.op.phase), static_cast<long long>(layer.op.layer),
                   layer.op.name.c_str(), OpKindName(layer.op.kind), TensorClassName(layer.op.tensor),
                   static_cast<unsigned long long>(layer.cycles), Seconds(layer.cycles, r.run),
                   static_cast<unsigned long long>(layer.ops),
                   static_cast<unsigned long long>(layer.dram_bytes), layer.intensity(),
                   static_cast<unsigned long long>(layer.bound_cycles), RegimeName(layer.regime),
-                  Efficiency(layer), double(layer.dram_bytes) * dram_pj_per_byte * 1e-12);
+                  Efficiency(layer), e.total_joules(), e.arithmetic_joules, e.sram_joules,
+                  e.dram_joules, e.decoder_joules);
     out << line;
   }
   return out.str();
