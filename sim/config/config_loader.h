@@ -4,7 +4,8 @@
 // Unknown keys are errors that suggest the nearest known key; wrong types,
 // out-of-range values and inconsistent combinations are errors naming the
 // file, line, key path, value and what is allowed. Nothing is clamped.
-// All failures throw tritsim::Error with ExitCode::kBadInput.
+// File failures throw tritsim::Error with ExitCode::kBadInput (exit 3);
+// workload failures (command-line flags) with ExitCode::kUsage (exit 2).
 #pragma once
 
 #include <string>
@@ -42,7 +43,7 @@ ModelConfig DefaultModel(const ConfigOverrides& overrides = {});
 ArchConfig DefaultArch(const ConfigOverrides& overrides = {});
 
 // Checks a workload against a model (ranges, and that counters cannot
-// overflow). `source_name` names the origin in messages (e.g. "--decode").
+// overflow). Messages name the command-line flag (e.g. "--decode").
 void ValidateWorkload(const WorkloadConfig& workload, const ModelConfig& model);
 
 // The DRAM preset's fields (organisation, timing, ideal parameters) written
