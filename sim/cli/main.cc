@@ -8,6 +8,7 @@
 
 #include "cli/commands.h"
 #include "common/error.h"
+#include "common/interrupt.h"
 
 namespace {
 
@@ -50,6 +51,7 @@ int Dispatch(int argc, char** argv) {
 // libsystemc.so defines main() and calls sc_main() (declared extern "C" by SystemC).
 extern "C" int sc_main(int argc, char* argv[]);
 int sc_main(int argc, char* argv[]) {
+  tritsim::InstallInterruptHandler();
   try {
     return Dispatch(argc, argv);
   } catch (const tritsim::Error& e) {

@@ -1,0 +1,31 @@
+// Cooperative handling of Ctrl-C (SIGINT) and SIGTERM.
+//
+// The first signal only sets a flag; long-running loops poll
+// InterruptRequested() at safe points (the sequencer does so once per trace
+// op) and unwind by throwing tritsim::Error(ExitCode::kInterrupted), so no
+// output file is written and the process exits 130. The handler then restores
+// the default action, so a second signal ends the process at once.
+#pragma once
+
+#include <string>
+
+namespace tritsim {
+
+// Installs the handler for SIGINT and SIGTERM. Call once, early in main,
+// before any thread is started. Idempotent.
+void InstallInterruptHandler();
+
+// True once a SIGINT or SIGTERM has arrived since InstallInterruptHandler().
+// Async-signal-safe to set, cheap to read (one relaxed atomic load).
+bool InterruptRequested();
+
+// The name of the signal that set the flag ("SIGINT", "SIGTERM"), or "" if
+// none has arrived. For the one-line message.
+const char* InterruptSignalName();
+
+// Throws tritsim::Error(ExitCode::kInterrupted) with the one-line message
+// "interrupted (SIGINT) WHERE; no output written". Call it only after
+// InterruptRequested() returned true, so hot loops build no string.
+[[noreturn]] void ThrowInterrupted(const std::string& where);
+
+}  // namespace tritsim
