@@ -68,11 +68,16 @@ DramAddressMap::DramAddressMap(const DramConfig& dram) {
 
 uint64_t DramAddressMap::RadixOf(const DramConfig& dram, AddressField field) const {
   switch (field) {
-    case AddressField::kChannel: return static_cast<uint64_t>(dram.channels);
-    case AddressField::kBankGroup: return static_cast<uint64_t>(dram.bank_groups);
-    case AddressField::kBank: return static_cast<uint64_t>(dram.banks_per_group);
-    case AddressField::kColumn: return static_cast<uint64_t>(dram.row_bytes) / burst_bytes_;
-    case AddressField::kRow: break;
+    case AddressField::kChannel:
+      return static_cast<uint64_t>(dram.channels);
+    case AddressField::kBankGroup:
+      return static_cast<uint64_t>(dram.bank_groups);
+    case AddressField::kBank:
+      return static_cast<uint64_t>(dram.banks_per_group);
+    case AddressField::kColumn:
+      return static_cast<uint64_t>(dram.row_bytes) / burst_bytes_;
+    case AddressField::kRow:
+      break;
   }
   return 0;  // the row: unbounded
 }

@@ -55,11 +55,6 @@ DramChannel::DramChannel(const DramConfig& dram) {
   next_refresh_ps_ = t_.tREFI;
 }
 
-bool DramChannel::IsReadyHit(const DramRequest& r, uint64_t now_ps) const {
-  const Bank& b = banks_[r.bank];
-  return b.open_row == r.row && b.cas_ok_ps <= now_ps;
-}
-
 size_t DramChannel::ChooseFrFcfs(uint64_t now_ps) const {
   if (closed_page_) return 0;  // every access auto-precharges: never a row hit
   for (size_t age = 0; age < queued_; ++age) {
@@ -80,19 +75,6 @@ uint64_t DramChannel::PlanAct(const DramRequest& r, uint64_t after_ps) const {
   act = Max(act, act_any_ok_ps_);
   act = Max(act, act_group_ok_ps_[r.bank_group]);
   return Max(act, faw_ok_ps_[faw_next_]);
-}
-
-uint64_t DramChannel::PlanCas(const DramRequest& r, uint64_t after_ps) const {
-  uint64_t cas = Max(after_ps, cas_any_ok_ps_);
-  cas = Max(cas, cas_group_ok_ps_[r.bank_group]);
-  if (r.is_write) {
-    if (cas + t_.CWL < wr_data_ok_ps_) cas = wr_data_ok_ps_ - t_.CWL;
-    return cas;
-  }
-  cas = Max(cas, rd_after_wr_any_ok_ps_);
-  cas = Max(cas, rd_after_wr_group_ok_ps_[r.bank_group]);
-  if (cas + t_.CL < rd_data_ok_ps_) cas = rd_data_ok_ps_ - t_.CL;
-  return cas;
 }
 
 DramCommandTimes DramChannel::Plan(const DramRequest& r, uint64_t now_ps) const {
@@ -139,27 +121,6 @@ void DramChannel::CommitAct(const DramRequest& r, uint64_t act_ps) {
   ++stats_.activates;
 }
 
-void DramChannel::CommitCas(const DramRequest& r, const DramCommandTimes& t) {
-  Bank& b = banks_[r.bank];
-  cas_any_ok_ps_ = t.cas_ps + t_.tCCD_S;
-  cas_group_ok_ps_[r.bank_group] = t.cas_ps + t_.tCCD_L;
-  if (r.is_write) {
-    b.pre_ok_ps = Max(b.pre_ok_ps, t.done_ps + t_.tWR);
-    rd_after_wr_any_ok_ps_ = t.done_ps + t_.tWTR_S;
-    rd_after_wr_group_ok_ps_[r.bank_group] = t.done_ps + t_.tWTR_L;
-    rd_data_ok_ps_ = t.done_ps;
-    wr_data_ok_ps_ = t.done_ps;
-  } else {
-    b.pre_ok_ps = Max(b.pre_ok_ps, t.cas_ps + t_.tRTP);
-    rd_data_ok_ps_ = t.done_ps;
-    wr_data_ok_ps_ = t.done_ps + t_.rd_to_wr;
-  }
-  if (closed_page_) {  // auto-precharge as soon as allowed
-    b.act_ok_ps = Max(b.act_ok_ps, b.pre_ok_ps + t_.tRP);
-    b.open_row = kNoRow;
-  }
-}
-
 void DramChannel::Commit(const DramRequest& r, const DramCommandTimes& t) {
   CountKind(r);
   if (t.pre_ps != DramCommandTimes::kNoCommand) {
@@ -202,35 +163,6 @@ DramPick DramChannel::PickAny(uint64_t now_ps) {
   DramPick pick{r.tag, times};
   RemoveAt(age);
   return pick;
-}
-
-// The oldest request is a ready row hit and its CAS comes before the next
-// refresh: what PickAny would do in that case, without the general steps.
-DramPick DramChannel::PickOldestHit(uint64_t cas_ps) {
-  const DramRequest& r = queue_[head_];
-  DramPick pick;
-  pick.tag = r.tag;
-  pick.times.cas_ps = cas_ps;
-  pick.times.done_ps = cas_ps + (r.is_write ? t_.CWL : t_.CL) + t_.burst;
-  ++stats_.row_hits;
-  ++(r.is_write ? stats_.writes : stats_.reads);
-  stats_.busy_ps += t_.burst;
-  CommitCas(r, pick.times);
-  pick_ok_ps_ = cas_ps;
-  head_ = Slot(1);
-  --queued_;
-  return pick;
-}
-
-DramPick DramChannel::Pick() {
-  const uint64_t now_ps = NextPickPs();
-  const DramRequest& oldest = queue_[head_];
-  if (now_ps < next_refresh_ps_ && IsReadyHit(oldest, now_ps)) {
-    // A ready hit's CAS waits only for channel-wide constraints (ACT + tRCD has passed).
-    const uint64_t cas_ps = PlanCas(oldest, now_ps);
-    if (cas_ps < next_refresh_ps_) return PickOldestHit(cas_ps);
-  }
-  return PickAny(now_ps);
 }
 
 void DramChannel::Finish(uint64_t end_ps) {

@@ -33,6 +33,7 @@
 // order requests were picked; refresh is never postponed or pulled in.
 #pragma once
 
+#include <algorithm>
 #include <array>
 #include <cstdint>
 #include <vector>
@@ -48,7 +49,7 @@ struct DramRequest {
   uint64_t arrival_ps = 0;  // when it entered the controller queue
   uint32_t bank = 0;        // flat bank index: bank_group * banks_per_group + bank
   uint32_t bank_group = 0;
-  uint32_t tag = 0;         // caller's handle, returned by Pick()
+  uint32_t tag = 0;  // caller's handle, returned by Pick()
   bool is_write = false;
 };
 
@@ -167,18 +168,18 @@ class DramChannel {
 
   std::vector<Bank> banks_;
   // Channel-wide "allowed from" times, ps.
-  uint64_t act_any_ok_ps_ = 0;                     // last ACT + tRRD_S
+  uint64_t act_any_ok_ps_ = 0;                              // last ACT + tRRD_S
   std::array<uint64_t, kMaxBankGroups> act_group_ok_ps_{};  // last ACT in group + tRRD_L
-  std::array<uint64_t, kFawActs> faw_ok_ps_{};     // each of the last 4 ACTs + tFAW
-  size_t faw_next_ = 0;                            // oldest entry of faw_ok_ps_
-  uint64_t cas_any_ok_ps_ = 0;                     // last CAS + tCCD_S
+  std::array<uint64_t, kFawActs> faw_ok_ps_{};              // each of the last 4 ACTs + tFAW
+  size_t faw_next_ = 0;                                     // oldest entry of faw_ok_ps_
+  uint64_t cas_any_ok_ps_ = 0;                              // last CAS + tCCD_S
   std::array<uint64_t, kMaxBankGroups> cas_group_ok_ps_{};  // last CAS in group + tCCD_L
-  uint64_t rd_after_wr_any_ok_ps_ = 0;             // write data end + tWTR_S
+  uint64_t rd_after_wr_any_ok_ps_ = 0;                      // write data end + tWTR_S
   std::array<uint64_t, kMaxBankGroups> rd_after_wr_group_ok_ps_{};  // + tWTR_L, same group
-  uint64_t rd_data_ok_ps_ = 0;                     // earliest start of read data
-  uint64_t wr_data_ok_ps_ = 0;                     // earliest start of write data
-  uint64_t next_refresh_ps_ = 0;                   // next refresh deadline
-  uint64_t pick_ok_ps_ = 0;                        // first command of the last pick
+  uint64_t rd_data_ok_ps_ = 0;                                      // earliest start of read data
+  uint64_t wr_data_ok_ps_ = 0;                                      // earliest start of write data
+  uint64_t next_refresh_ps_ = 0;                                    // next refresh deadline
+  uint64_t pick_ok_ps_ = 0;  // first command of the last pick
 
   // Queue: a ring in arrival order (age 0 = oldest).
   std::vector<DramRequest> queue_;
@@ -188,5 +189,75 @@ class DramChannel {
 
   DramStats stats_;
 };
+
+// ---- Hot path, inline: the common pick of a ready row hit. ----
+
+inline bool DramChannel::IsReadyHit(const DramRequest& r, uint64_t now_ps) const {
+  const Bank& b = banks_[r.bank];
+  return b.open_row == r.row && b.cas_ok_ps <= now_ps;
+}
+
+inline uint64_t DramChannel::PlanCas(const DramRequest& r, uint64_t after_ps) const {
+  uint64_t cas = std::max(after_ps, cas_any_ok_ps_);
+  cas = std::max(cas, cas_group_ok_ps_[r.bank_group]);
+  if (r.is_write) {
+    if (cas + t_.CWL < wr_data_ok_ps_) cas = wr_data_ok_ps_ - t_.CWL;
+    return cas;
+  }
+  cas = std::max(cas, rd_after_wr_any_ok_ps_);
+  cas = std::max(cas, rd_after_wr_group_ok_ps_[r.bank_group]);
+  if (cas + t_.CL < rd_data_ok_ps_) cas = rd_data_ok_ps_ - t_.CL;
+  return cas;
+}
+
+inline void DramChannel::CommitCas(const DramRequest& r, const DramCommandTimes& t) {
+  Bank& b = banks_[r.bank];
+  cas_any_ok_ps_ = t.cas_ps + t_.tCCD_S;
+  cas_group_ok_ps_[r.bank_group] = t.cas_ps + t_.tCCD_L;
+  if (r.is_write) {
+    b.pre_ok_ps = std::max(b.pre_ok_ps, t.done_ps + t_.tWR);
+    rd_after_wr_any_ok_ps_ = t.done_ps + t_.tWTR_S;
+    rd_after_wr_group_ok_ps_[r.bank_group] = t.done_ps + t_.tWTR_L;
+    rd_data_ok_ps_ = t.done_ps;
+    wr_data_ok_ps_ = t.done_ps;
+  } else {
+    b.pre_ok_ps = std::max(b.pre_ok_ps, t.cas_ps + t_.tRTP);
+    rd_data_ok_ps_ = t.done_ps;
+    wr_data_ok_ps_ = t.done_ps + t_.rd_to_wr;
+  }
+  if (closed_page_) {  // auto-precharge as soon as allowed
+    b.act_ok_ps = std::max(b.act_ok_ps, b.pre_ok_ps + t_.tRP);
+    b.open_row = kNoRow;
+  }
+}
+
+// The oldest request is a ready row hit and its CAS comes before the next
+// refresh: what PickAny would do in that case, without the general steps.
+inline DramPick DramChannel::PickOldestHit(uint64_t cas_ps) {
+  const DramRequest& r = queue_[head_];
+  DramPick pick;
+  pick.tag = r.tag;
+  pick.times.cas_ps = cas_ps;
+  pick.times.done_ps = cas_ps + (r.is_write ? t_.CWL : t_.CL) + t_.burst;
+  ++stats_.row_hits;
+  ++(r.is_write ? stats_.writes : stats_.reads);
+  stats_.busy_ps += t_.burst;
+  CommitCas(r, pick.times);
+  pick_ok_ps_ = cas_ps;
+  head_ = Slot(1);
+  --queued_;
+  return pick;
+}
+
+inline DramPick DramChannel::Pick() {
+  const uint64_t now_ps = NextPickPs();
+  const DramRequest& oldest = queue_[head_];
+  if (now_ps < next_refresh_ps_ && IsReadyHit(oldest, now_ps)) {
+    // A ready hit's CAS waits only for channel-wide constraints (ACT + tRCD has passed).
+    const uint64_t cas_ps = PlanCas(oldest, now_ps);
+    if (cas_ps < next_refresh_ps_) return PickOldestHit(cas_ps);
+  }
+  return PickAny(now_ps);
+}
 
 }  // namespace tritsim

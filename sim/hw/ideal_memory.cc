@@ -34,8 +34,8 @@ uint64_t IdealMemory::IssueOne(uint64_t arrival_ps, bool is_write) {
   return (bus_free_fs_ + kFsPerPs - 1) / kFsPerPs + latency_ps_;
 }
 
-uint64_t IdealMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write,
-                               uint64_t start_ps, int64_t max_outstanding) {
+uint64_t IdealMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, uint64_t start_ps,
+                               int64_t max_outstanding) {
   if (bytes == 0) return start_ps;
   const uint64_t first = address / kBurstBytes;
   const uint64_t count = (address + bytes + kBurstBytes - 1) / kBurstBytes - first;

@@ -34,10 +34,10 @@ class IdealMemory final : public MemorySystem {
   uint64_t IssueOne(uint64_t arrival_ps, bool is_write);
 
   double bytes_per_second_ = 0.0;
-  uint64_t burst_fs_ = 1;     // bus time of one burst, fs
+  uint64_t burst_fs_ = 1;  // bus time of one burst, fs
   uint64_t latency_ps_ = 0;
-  uint64_t bus_free_fs_ = 0;  // end of the last burst's bus time, fs
-  uint64_t busy_fs_ = 0;      // bus time of all bursts so far, fs
+  uint64_t bus_free_fs_ = 0;         // end of the last burst's bus time, fs
+  uint64_t busy_fs_ = 0;             // bus time of all bursts so far, fs
   std::vector<uint64_t> window_ps_;  // completions of the last max_outstanding requests
   DramStats stats_;
 };

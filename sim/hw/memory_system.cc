@@ -53,13 +53,13 @@ class DramMemory final : public MemorySystem {
   // Per-Transfer progress of the event loop.
   struct Progress {
     uint64_t first_burst_address = 0;
-    uint64_t count = 0;        // requests in this transfer
-    uint64_t arrived = 0;      // requests already queued
-    uint64_t picked = 0;       // requests already scheduled
-    uint64_t now_ps = 0;       // time of the last event
+    uint64_t count = 0;    // requests in this transfer
+    uint64_t arrived = 0;  // requests already queued
+    uint64_t picked = 0;   // requests already scheduled
+    uint64_t now_ps = 0;   // time of the last event
     uint64_t start_ps = 0;
-    uint64_t done_ps = 0;      // latest completion so far
-    size_t slot = 0;           // window slot of the next arrival
+    uint64_t done_ps = 0;  // latest completion so far
+    size_t slot = 0;       // window slot of the next arrival
     bool is_write = false;
   };
 
@@ -91,7 +91,7 @@ class DramMemory final : public MemorySystem {
   // channels_[c].NextPickPs(), kept up to date after every change to c.
   std::vector<uint64_t> pick_ps_;
   uint64_t min_pick_ps_ = DramChannel::kNever;  // min of pick_ps_ (2+ channels only)
-  size_t min_channel_ = 0;                       // lowest channel holding it
+  size_t min_channel_ = 0;                      // lowest channel holding it
   mutable DramStats total_;
 };
 
@@ -100,12 +100,11 @@ DramMemory::DramMemory(const DramConfig& dram)
   channels_.reserve(static_cast<size_t>(dram.channels));
   for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram);
   pick_ps_.assign(channels_.size(), DramChannel::kNever);
-  const uint64_t burst_ps =
-      channels_.front().tck_ps() * static_cast<uint64_t>(dram.timing.burst_length) /
-      kDdrTransfersPerCycle;
+  const uint64_t burst_ps = channels_.front().tck_ps() *
+                            static_cast<uint64_t>(dram.timing.burst_length) / kDdrTransfersPerCycle;
   peak_bytes_per_second_ = static_cast<double>(dram.channels) *
-                           static_cast<double>(map_.burst_bytes()) /
-                           static_cast<double>(burst_ps) * kPsPerSecond;
+                           static_cast<double>(map_.burst_bytes()) / static_cast<double>(burst_ps) *
+                           kPsPerSecond;
 }
 
 // Earliest time the pending request may enter its queue, or kUnknown while

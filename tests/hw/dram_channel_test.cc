@@ -185,8 +185,7 @@ TEST_F(DramTest, DramFifthActivateWaitsForTfaw) {
   // Five banks: groups 0..3 then group 0 again (another bank).
   const uint32_t groups[] = {0, 1, 2, 3, 0};
   const uint32_t banks[] = {0, 0, 0, 0, 1};
-  for (uint32_t i = 0; i < 5; ++i)
-    channel.Enqueue(Request(groups[i], banks[i], 0, false, i, d));
+  for (uint32_t i = 0; i < 5; ++i) channel.Enqueue(Request(groups[i], banks[i], 0, false, i, d));
   std::vector<uint64_t> act;
   for (int i = 0; i < 5; ++i) act.push_back(channel.Pick().times.act_ps);
   for (int i = 1; i < 4; ++i) EXPECT_EQ(act[i] - act[i - 1], Ps(d, t.tRRD_S));  // JESD79-4
@@ -212,7 +211,7 @@ TEST_F(DramTest, DramFrFcfsServesReadyRowHitBeforeOlderMiss) {
   const DramConfig d = Ddr4();
   DramChannel channel(d);
   channel.Enqueue(Request(0, 0, 4, false, 0, d));
-  channel.Pick();  // opens row 4 in bank 0
+  channel.Pick();                                  // opens row 4 in bank 0
   channel.Enqueue(Request(1, 0, 0, false, 1, d));  // older, bank closed
   channel.Enqueue(Request(0, 0, 4, false, 2, d));  // younger, row hit once ACT + tRCD passed
   // Rixner et al., ISCA 2000: first-ready before first-come. The pick happens
@@ -345,7 +344,8 @@ TEST_F(DramTest, DramIdenticalRunsGiveIdenticalResults) {
       state = state * 6364136223846793005ULL + 1442695040888963407ULL;  // Knuth's MMIX LCG
       const uint64_t address = (state >> 20) % (256 * kMiB);
       start += (state >> 44) % 50000;
-      const uint64_t done = mem->Transfer(address, 64 + (state >> 58) * 64, (state >> 10) & 1, start, 8);
+      const uint64_t done =
+          mem->Transfer(address, 64 + (state >> 58) * 64, (state >> 10) & 1, start, 8);
       times.push_back(done);
       end = std::max(end, done);
     }
