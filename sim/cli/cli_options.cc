@@ -52,8 +52,8 @@ void AddInputOptions(po::options_description& desc, InputOptions& in, bool with_
 }
 
 void FinishInputOptions(const po::variables_map& vm, InputOptions& in) {
-  in.workload_given = vm.count("prefill") || vm.count("decode") || vm.count("context") ||
-                      vm.count("batch");
+  in.workload_given =
+      vm.count("prefill") || vm.count("decode") || vm.count("context") || vm.count("batch");
 }
 
 ModelConfig LoadModel(const InputOptions& in) {

@@ -25,7 +25,7 @@ struct InputOptions {
   std::string arch_path;               // empty: the embedded default design point
   std::vector<std::string> overrides;  // --set arch.KEY=VALUE / model.KEY=VALUE
   WorkloadConfig workload;
-  bool workload_given = false;         // any workload flag on the command line
+  bool workload_given = false;  // any workload flag on the command line
 };
 
 // Adds --model, --arch, --set and the workload flags (--prefill, --decode,
@@ -43,7 +43,6 @@ ArchConfig LoadArch(const InputOptions& inputs);
 // Throws UsageError with the command name on any parse error.
 void ParseCommandLine(const std::string& command, const std::vector<std::string>& args,
                       const boost::program_options::options_description& desc,
-                      boost::program_options::variables_map& vm,
-                      const char* positional = nullptr);
+                      boost::program_options::variables_map& vm, const char* positional = nullptr);
 
 }  // namespace tritsim

@@ -60,10 +60,12 @@ int InspectCommand(const Args& args) {
   po::options_description desc("inspect options");
   desc.add_options()("help,h", "show this help");
   AddInputOptions(desc, in, true);
-  desc.add_options()("json", po::value(&json_path)->value_name("FILE"), "write the figures as JSON");
+  desc.add_options()("json", po::value(&json_path)->value_name("FILE"),
+                     "write the figures as JSON");
   if (WantsHelp(args)) {
-    PrintHelp("usage: tritsim inspect [--model FILE] [--arch FILE] [workload options] [--json FILE]",
-              desc);
+    PrintHelp(
+        "usage: tritsim inspect [--model FILE] [--arch FILE] [workload options] [--json FILE]",
+        desc);
     return 0;
   }
   po::variables_map vm;
@@ -122,17 +124,19 @@ int RunCommand(const Args& args) {
       "assume all weights already sit in the scratchpad (no weight DMA)")(
       "quiet,q", po::bool_switch(&quiet), "no console summary");
   if (WantsHelp(args)) {
-    PrintHelp("usage: tritsim run [--model FILE | --trace FILE] [--arch FILE] [workload options]\n"
-              "                   [--json FILE] [--csv FILE] [--plots DIR]",
-              desc);
+    PrintHelp(
+        "usage: tritsim run [--model FILE | --trace FILE] [--arch FILE] [workload options]\n"
+        "                   [--json FILE] [--csv FILE] [--plots DIR]",
+        desc);
     return 0;
   }
   po::variables_map vm;
   ParseCommandLine("run", args, desc, vm);
   FinishInputOptions(vm, in);
   if (!trace_path.empty() && (in.workload_given || !in.model_path.empty())) {
-    throw UsageError("tritsim run: --trace fixes the model and workload; do not combine it with "
-                     "--model or workload options");
+    throw UsageError(
+        "tritsim run: --trace fixes the model and workload; do not combine it with "
+        "--model or workload options");
   }
   const ArchConfig arch = LoadArch(in);
   ResolveEnergyTable(arch.energy, arch.dram.preset);  // reject a bad energy table before running

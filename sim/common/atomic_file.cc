@@ -29,8 +29,8 @@ void WriteFileAtomically(const std::string& path, const std::string& content) {
   if (std::rename(temp.c_str(), path.c_str()) != 0) {
     int err = errno;
     std::remove(temp.c_str());
-    throw Error(ExitCode::kBadInput, path + ": cannot rename output into place: " +
-                                         std::strerror(err));
+    throw Error(ExitCode::kBadInput,
+                path + ": cannot rename output into place: " + std::strerror(err));
   }
 }
 

@@ -14,17 +14,16 @@ namespace tritsim {
 // Process exit codes. A contract relied on by scripts and sweeps.
 enum class ExitCode : int {
   kOk = 0,
-  kInternal = 1,     // a bug in tritsim
-  kUsage = 2,        // bad command line
-  kBadInput = 3,     // a model, architecture, workload, trace or sweep file is wrong
-  kSimFailed = 4,    // the simulation could not complete (tile does not fit, watchdog)
-  kInterrupted = 130 // SIGINT
+  kInternal = 1,      // a bug in tritsim
+  kUsage = 2,         // bad command line
+  kBadInput = 3,      // a model, architecture, workload, trace or sweep file is wrong
+  kSimFailed = 4,     // the simulation could not complete (tile does not fit, watchdog)
+  kInterrupted = 130  // SIGINT
 };
 
 class Error : public std::runtime_error {
  public:
-  Error(ExitCode code, const std::string& message)
-      : std::runtime_error(message), code_(code) {}
+  Error(ExitCode code, const std::string& message) : std::runtime_error(message), code_(code) {}
   ExitCode code() const { return code_; }
 
  private:
@@ -32,9 +31,7 @@ class Error : public std::runtime_error {
 };
 
 // A command-line mistake: exit 2.
-inline Error UsageError(const std::string& message) {
-  return Error(ExitCode::kUsage, message);
-}
+inline Error UsageError(const std::string& message) { return Error(ExitCode::kUsage, message); }
 
 // A bad input file. Formats "FILE:LINE: KEY: MESSAGE"; line 0 omits the line,
 // an empty key omits the key.
@@ -49,8 +46,6 @@ inline Error InputError(const std::string& file, int line, const std::string& ke
 }
 
 // The simulation could not complete: exit 4.
-inline Error SimError(const std::string& message) {
-  return Error(ExitCode::kSimFailed, message);
-}
+inline Error SimError(const std::string& message) { return Error(ExitCode::kSimFailed, message); }
 
 }  // namespace tritsim

@@ -30,11 +30,11 @@ struct ClockConfig {
 
 struct TreeArrayConfig {
   ArrayKind kind = ArrayKind::kTernary;
-  int64_t trees = 64;            // T: adder trees working in parallel, [1, 65536]
-  int64_t fan_in = 64;           // F: inputs summed per tree per cycle, power of two in [2, 4096]
-  int accumulator_bits = 32;     // A: accumulator width, [8, 64]
-  int register_cut = 1;          // extra pipeline registers beyond log2(F) adder levels, [0, 16]
-  bool zero_gating = true;       // zero trits gate their adder inputs (energy only)
+  int64_t trees = 64;         // T: adder trees working in parallel, [1, 65536]
+  int64_t fan_in = 64;        // F: inputs summed per tree per cycle, power of two in [2, 4096]
+  int accumulator_bits = 32;  // A: accumulator width, [8, 64]
+  int register_cut = 1;       // extra pipeline registers beyond log2(F) adder levels, [0, 16]
+  bool zero_gating = true;    // zero trits gate their adder inputs (energy only)
 };
 
 struct PackingConfig {
@@ -44,17 +44,17 @@ struct PackingConfig {
 };
 
 struct VectorUnitConfig {
-  int64_t lanes = 128;           // L: int8 multiply-accumulate lanes, [1, 65536]
+  int64_t lanes = 128;  // L: int8 multiply-accumulate lanes, [1, 65536]
   // Special-function results per cycle (exp, rsqrt, activation functions), [1, 65536].
   int64_t special_per_cycle = 16;
-  int pipeline_cycles = 4;       // latency of one vector instruction, [0, 1024]
+  int pipeline_cycles = 4;  // latency of one vector instruction, [0, 1024]
 };
 
 struct ScratchpadConfig {
-  int64_t capacity_kib = 2048;   // total on-chip SRAM, KiB, [16, 1048576]
-  int64_t banks = 16;            // independent banks, power of two in [1, 1024]
-  int64_t bank_width_bytes = 64; // bytes one bank delivers per access, power of two in [4, 1024]
-  int ports = 1;                 // access ports per bank (1: a DMA write and an array read conflict), [1, 4]
+  int64_t capacity_kib = 2048;    // total on-chip SRAM, KiB, [16, 1048576]
+  int64_t banks = 16;             // independent banks, power of two in [1, 1024]
+  int64_t bank_width_bytes = 64;  // bytes one bank delivers per access, power of two in [4, 1024]
+  int ports = 1;  // access ports per bank (1: a DMA write and an array read conflict), [1, 4]
 };
 
 struct DmaConfig {
@@ -69,24 +69,24 @@ enum class AddressField { kRow, kBank, kBankGroup, kColumn, kChannel };
 
 // JEDEC timing parameters, in DRAM clock cycles (nCK) unless noted.
 struct DramTiming {
-  double tCK_ns = 0.625;   // DRAM clock period, ns (DDR: two transfers per tCK)
-  int64_t CL = 22;         // read latency, CAS to first data
-  int64_t CWL = 16;        // write latency
-  int64_t tRCD = 22;       // ACT to CAS
-  int64_t tRP = 22;        // PRE to ACT
-  int64_t tRAS = 52;       // ACT to PRE
-  int64_t tRC = 74;        // ACT to ACT, same bank
-  int64_t tCCD_S = 4;      // CAS to CAS, different bank group
-  int64_t tCCD_L = 8;      // CAS to CAS, same bank group
-  int64_t tRRD_S = 4;      // ACT to ACT, different bank group
-  int64_t tRRD_L = 8;      // ACT to ACT, same bank group
-  int64_t tFAW = 34;       // window holding at most four ACTs
-  int64_t tWR = 24;        // write recovery, end of write data to PRE
-  int64_t tWTR_S = 4;      // end of write data to read, different bank group
-  int64_t tWTR_L = 12;     // end of write data to read, same bank group
-  int64_t tRTP = 12;       // read to PRE
-  int64_t tRFC = 560;      // refresh cycle time (all banks)
-  int64_t tREFI = 12480;   // average refresh interval
+  double tCK_ns = 0.625;     // DRAM clock period, ns (DDR: two transfers per tCK)
+  int64_t CL = 22;           // read latency, CAS to first data
+  int64_t CWL = 16;          // write latency
+  int64_t tRCD = 22;         // ACT to CAS
+  int64_t tRP = 22;          // PRE to ACT
+  int64_t tRAS = 52;         // ACT to PRE
+  int64_t tRC = 74;          // ACT to ACT, same bank
+  int64_t tCCD_S = 4;        // CAS to CAS, different bank group
+  int64_t tCCD_L = 8;        // CAS to CAS, same bank group
+  int64_t tRRD_S = 4;        // ACT to ACT, different bank group
+  int64_t tRRD_L = 8;        // ACT to ACT, same bank group
+  int64_t tFAW = 34;         // window holding at most four ACTs
+  int64_t tWR = 24;          // write recovery, end of write data to PRE
+  int64_t tWTR_S = 4;        // end of write data to read, different bank group
+  int64_t tWTR_L = 12;       // end of write data to read, same bank group
+  int64_t tRTP = 12;         // read to PRE
+  int64_t tRFC = 560;        // refresh cycle time (all banks)
+  int64_t tREFI = 12480;     // average refresh interval
   int64_t burst_length = 8;  // BL: transfers per burst (burst takes BL/2 tCK)
 };
 
@@ -105,8 +105,8 @@ struct DramConfig {
                                            AddressField::kChannel};
   DramTiming timing;
   // Ideal memory only: fixed latency and bandwidth, no banks, no refresh.
-  double ideal_latency_ns = 50.0;          // (0, 1e6]
-  double ideal_bandwidth_gbps = 25.6;      // GB/s (1e9 bytes/s), (0, 1e6]
+  double ideal_latency_ns = 50.0;      // (0, 1e6]
+  double ideal_bandwidth_gbps = 25.6;  // GB/s (1e9 bytes/s), (0, 1e6]
   bool is_ideal() const { return preset == "ideal"; }
 };
 

@@ -10,7 +10,7 @@
 
 namespace tritsim {
 
-enum class FfnKind { kPlain, kGated };              // plain: up, act, down; gated: gate*up
+enum class FfnKind { kPlain, kGated };  // plain: up, act, down; gated: gate*up
 enum class Activation { kRelu, kGelu, kSilu, kRelu2 };
 
 // Storage precision of a weight tensor class. Ternary tensors are packed by
@@ -18,26 +18,26 @@ enum class Activation { kRelu, kGelu, kSilu, kRelu2 };
 enum class WeightFormat { kTernary, kInt8, kInt16 };
 
 struct ModelConfig {
-  std::string name = "unnamed";     // label for reports
-  int64_t layers = 24;              // decoder blocks, >= 1
-  int64_t width = 2048;             // model (residual) width d, >= 1
-  int64_t heads = 16;               // query heads, divides into width via head_dim
-  int64_t kv_heads = 16;            // key/value heads, must divide heads (grouped-query)
-  int64_t head_dim = 128;           // size of one head
-  int64_t ffn_width = 5632;         // FFN hidden width
+  std::string name = "unnamed";  // label for reports
+  int64_t layers = 24;           // decoder blocks, >= 1
+  int64_t width = 2048;          // model (residual) width d, >= 1
+  int64_t heads = 16;            // query heads, divides into width via head_dim
+  int64_t kv_heads = 16;         // key/value heads, must divide heads (grouped-query)
+  int64_t head_dim = 128;        // size of one head
+  int64_t ffn_width = 5632;      // FFN hidden width
   FfnKind ffn_kind = FfnKind::kGated;
   Activation activation = Activation::kSilu;
-  int64_t vocab = 32000;            // vocabulary size
-  bool tied_embeddings = false;     // output head shares the embedding matrix
+  int64_t vocab = 32000;         // vocabulary size
+  bool tied_embeddings = false;  // output head shares the embedding matrix
 
   // Precision per tensor class.
   WeightFormat attention_weights = WeightFormat::kTernary;  // q, k, v, o projections
   WeightFormat ffn_weights = WeightFormat::kTernary;        // gate, up, down
   WeightFormat embedding_weights = WeightFormat::kInt8;     // 8 or 16 bit only
   WeightFormat head_weights = WeightFormat::kInt8;          // 8 or 16 bit only
-  int norm_bits = 16;               // RMSNorm gains, 8 or 16 bit
-  int activation_bits = 8;          // activations between ops, 8 or 16
-  int kv_bits = 8;                  // KV-cache entries, 8 or 16
+  int norm_bits = 16;                                       // RMSNorm gains, 8 or 16 bit
+  int activation_bits = 8;                                  // activations between ops, 8 or 16
+  int kv_bits = 8;                                          // KV-cache entries, 8 or 16
 
   // Fraction of ternary weights that are zero. Default: absmean quantization
   // of Gaussian weights leaves erf(1/(2 sqrt(pi))) = 0.31006 zeros

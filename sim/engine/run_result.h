@@ -23,19 +23,19 @@ struct StallBreakdown {
 
 // Events that cost energy, counted by the units that cause them.
 struct EventCounts {
-  uint64_t weight_uses = 0;        // activation x weight products in the array (= K*N*M per GEMM)
-  uint64_t weight_uses_zero = 0;   // of those, with a zero trit (gateable)
-  uint64_t accumulator_adds = 0;   // accumulator updates (one per tree output per K chunk)
-  uint64_t decoder_bytes = 0;      // packed base-3 bytes expanded by the trit decoder
-  uint64_t vector_macs = 0;        // int8 multiply-accumulates in the vector unit
-  uint64_t vector_special = 0;     // special-function evaluations (exp, rsqrt, act)
-  uint64_t vector_elementwise = 0; // elementwise adds/multiplies (residual, norm scale, quantize)
-  uint64_t sram_reads = 0;         // bank accesses of bank_width_bytes
+  uint64_t weight_uses = 0;         // activation x weight products in the array (= K*N*M per GEMM)
+  uint64_t weight_uses_zero = 0;    // of those, with a zero trit (gateable)
+  uint64_t accumulator_adds = 0;    // accumulator updates (one per tree output per K chunk)
+  uint64_t decoder_bytes = 0;       // packed base-3 bytes expanded by the trit decoder
+  uint64_t vector_macs = 0;         // int8 multiply-accumulates in the vector unit
+  uint64_t vector_special = 0;      // special-function evaluations (exp, rsqrt, act)
+  uint64_t vector_elementwise = 0;  // elementwise adds/multiplies (residual, norm scale, quantize)
+  uint64_t sram_reads = 0;          // bank accesses of bank_width_bytes
   uint64_t sram_writes = 0;
   uint64_t dram_bytes_read = 0;
   uint64_t dram_bytes_written = 0;
   uint64_t dram_activates = 0;
-  uint64_t dram_refreshes = 0;     // all-bank refresh commands, summed over channels
+  uint64_t dram_refreshes = 0;  // all-bank refresh commands, summed over channels
 };
 
 // Adds every count of `from` into `into`.
@@ -56,15 +56,15 @@ inline void AddEvents(const EventCounts& from, EventCounts& into) {
 }
 
 struct DramStats {
-  uint64_t reads = 0;              // requests (one burst each)
+  uint64_t reads = 0;  // requests (one burst each)
   uint64_t writes = 0;
   uint64_t row_hits = 0;
-  uint64_t row_misses = 0;         // closed bank: ACT needed
-  uint64_t row_conflicts = 0;      // other row open: PRE + ACT needed
+  uint64_t row_misses = 0;     // closed bank: ACT needed
+  uint64_t row_conflicts = 0;  // other row open: PRE + ACT needed
   uint64_t activates = 0;
   uint64_t refreshes = 0;
-  uint64_t busy_ps = 0;            // data-bus busy time, summed over channels
-  uint64_t refresh_ps = 0;         // time in refresh, summed over channels
+  uint64_t busy_ps = 0;     // data-bus busy time, summed over channels
+  uint64_t refresh_ps = 0;  // time in refresh, summed over channels
   double row_hit_rate() const {
     uint64_t n = row_hits + row_misses + row_conflicts;
     return n ? double(row_hits) / double(n) : 0.0;
@@ -77,11 +77,11 @@ enum class Regime { kMemory, kCompute };
 struct OpResult {
   TraceOp op;
   uint64_t start_cycle = 0;
-  uint64_t cycles = 0;             // core cycles from the op's start to its end
-  uint64_t ops = 0;                // arithmetic ops (2 per multiply-equivalent+add, common practice)
-  uint64_t dram_bytes = 0;         // read + written on behalf of this op
-  uint64_t bound_cycles = 0;       // roofline lower bound max(ops/peak, bytes/bandwidth)
-  Regime regime = Regime::kMemory; // which term of the bound dominates
+  uint64_t cycles = 0;        // core cycles from the op's start to its end
+  uint64_t ops = 0;           // arithmetic ops (2 per multiply-equivalent+add, common practice)
+  uint64_t dram_bytes = 0;    // read + written on behalf of this op
+  uint64_t bound_cycles = 0;  // roofline lower bound max(ops/peak, bytes/bandwidth)
+  Regime regime = Regime::kMemory;  // which term of the bound dominates
   // Energy events of this op's tiles (DRAM activates and refreshes are not
   // attributed to ops: they stay in RunResult::events only).
   EventCounts events;
@@ -91,25 +91,26 @@ struct OpResult {
 struct PhaseResult {
   Phase phase = Phase::kDecode;
   uint64_t cycles = 0;
-  uint64_t tokens = 0;             // tokens produced or consumed (batch x tokens)
+  uint64_t tokens = 0;  // tokens produced or consumed (batch x tokens)
 };
 
 struct RunResult {
   std::string arch_name;
   std::string model_name;
   double core_mhz = 0.0;
-  uint64_t cycles = 0;             // total core cycles
-  uint64_t sim_ps = 0;             // total simulated time, ps
+  uint64_t cycles = 0;  // total core cycles
+  uint64_t sim_ps = 0;  // total simulated time, ps
   uint64_t ops = 0;
-  uint64_t tokens = 0;             // generated tokens (decode x batch), or prompt tokens if no decode
-  uint64_t first_token_cycles = 0; // start to the end of the first decode step (or prefill)
+  uint64_t tokens = 0;  // generated tokens (decode x batch), or prompt tokens if no decode
+  uint64_t first_token_cycles = 0;  // start to the end of the first decode step (or prefill)
   std::vector<PhaseResult> phases;
-  std::vector<OpResult> layers;    // one per trace op, in order
+  std::vector<OpResult> layers;  // one per trace op, in order
   StallBreakdown stalls;
   EventCounts events;
   DramStats dram;
   uint64_t vector_busy_cycles = 0;
-  uint64_t sram_port_busy_cycles = 0;  // cycles with a scratchpad port in use, summed over banks/ports
+  uint64_t sram_port_busy_cycles =
+      0;  // cycles with a scratchpad port in use, summed over banks/ports
   double peak_ops_per_second = 0.0;
   double dram_peak_bytes_per_second = 0.0;
 };

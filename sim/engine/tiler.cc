@@ -104,18 +104,26 @@ Tiler::Tiler(const ArchConfig& arch, const SimOptions& options)
 uint64_t Tiler::OpOps(const TraceOp& op, const TraceStep& step) {
   const uint64_t m = uint64_t(op.m), n = uint64_t(op.n), k = uint64_t(op.k);
   switch (op.kind) {
-    case OpKind::kGemm: return 2 * m * n * k;
+    case OpKind::kGemm:
+      return 2 * m * n * k;
     case OpKind::kAttnScores:
     case OpKind::kAttnValues:
       return 2 * uint64_t(op.heads) * uint64_t(op.head_dim) * AllRowKeys(op, step);
-    case OpKind::kSoftmax: return 2 * uint64_t(op.heads) * AllRowKeys(op, step);
-    case OpKind::kNorm: return 3 * m * n;
-    case OpKind::kQuantize: return 2 * m * n;
-    case OpKind::kRope: return 4 * m * n;
-    case OpKind::kActivation: return 2 * m * n;
+    case OpKind::kSoftmax:
+      return 2 * uint64_t(op.heads) * AllRowKeys(op, step);
+    case OpKind::kNorm:
+      return 3 * m * n;
+    case OpKind::kQuantize:
+      return 2 * m * n;
+    case OpKind::kRope:
+      return 4 * m * n;
+    case OpKind::kActivation:
+      return 2 * m * n;
     case OpKind::kResidual:
-    case OpKind::kKvAppend: return m * n;
-    case OpKind::kEmbed: return 0;
+    case OpKind::kKvAppend:
+      return m * n;
+    case OpKind::kEmbed:
+      return 0;
   }
   return 0;
 }
@@ -134,8 +142,7 @@ void Tiler::CheckTileFits(const TraceOp& op, uint64_t needed_bytes, uint64_t cap
   if (needed_bytes <= capacity_bytes) return;
   throw SimError("in " + OpLabel(op) + ": smallest " + what + " tile needs " +
                  KibText(needed_bytes) + ", the scratchpad holds " + KibText(capacity_bytes) +
-                 " for it (sram.capacity_kib = " + std::to_string(arch_.sram.capacity_kib) +
-                 ")");
+                 " for it (sram.capacity_kib = " + std::to_string(arch_.sram.capacity_kib) + ")");
 }
 
 Tiler::ActivationPlan Tiler::PlanActivations(const TraceOp& op, uint64_t in_bytes_per_row,
@@ -170,10 +177,16 @@ void Tiler::Plan(const TraceOp& op, const TraceStep& step, int64_t op_index,
                  std::vector<WorkItem>& out) {
   const size_t first = out.size();
   switch (op.kind) {
-    case OpKind::kGemm: PlanGemm(op, op_index, out); break;
+    case OpKind::kGemm:
+      PlanGemm(op, op_index, out);
+      break;
     case OpKind::kAttnScores:
-    case OpKind::kAttnValues: PlanAttention(op, step, op_index, out); break;
-    default: PlanElementwise(op, step, op_index, out); break;
+    case OpKind::kAttnValues:
+      PlanAttention(op, step, op_index, out);
+      break;
+    default:
+      PlanElementwise(op, step, op_index, out);
+      break;
   }
   if (out.size() == first) {
     WorkItem empty;
@@ -199,13 +212,14 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
   const uint64_t trees = on_array ? uint64_t(arch_.array.trees) : 1;
   const uint64_t pass_bytes = BitsToBytes(fan * trees, weight_bits);
   CheckTileFits(op, pass_bytes, rates_.slot_bytes, "weight");
-  const uint64_t k_tile = std::min(
-      RoundUp(k, fan), std::max(fan, RoundDown(uint64_t(double(rates_.slot_bytes) * 8.0 /
-                                                        (weight_bits * double(trees))), fan)));
+  const uint64_t k_tile =
+      std::min(RoundUp(k, fan), std::max(fan, RoundDown(uint64_t(double(rates_.slot_bytes) * 8.0 /
+                                                                 (weight_bits * double(trees))),
+                                                        fan)));
   const uint64_t n_tile = std::min(
-      RoundUp(n, trees),
-      std::max(trees, RoundDown(uint64_t(double(rates_.slot_bytes) * 8.0 /
-                                         (weight_bits * double(k_tile))), trees)));
+      RoundUp(n, trees), std::max(trees, RoundDown(uint64_t(double(rates_.slot_bytes) * 8.0 /
+                                                            (weight_bits * double(k_tile))),
+                                                   trees)));
   const uint64_t act_bytes = uint64_t(op.act_bits) / 8;
   const ActivationPlan acts = PlanActivations(op, k * act_bytes, n * act_bytes);
   const uint64_t weight_total = BitsToBytes(k * n, weight_bits);
@@ -260,8 +274,8 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
           item.compute_cycles = CeilDiv(item.weight_uses, uint64_t(arch_.vector.lanes));
           item.vector_macs = item.weight_uses;
         }
-        item.sram_read_accesses =
-            CeilDiv(tile_bytes, bank_width) + CeilDiv(mt * kk * act_bytes, bank_width) * CeilDiv(nn, trees);
+        item.sram_read_accesses = CeilDiv(tile_bytes, bank_width) +
+                                  CeilDiv(mt * kk * act_bytes, bank_width) * CeilDiv(nn, trees);
         if (acts.output_to_dram && k0 + kk >= k) {
           item.store_address = kSpillBase + kSpillStride + (m0 * n + n0 * mt) * act_bytes;
           item.store_bytes = mt * nn * act_bytes;
@@ -271,7 +285,8 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
     }
   }
   // The last pass drains through the adder pipeline (or the vector pipeline).
-  out.back().compute_cycles += on_array ? rates_.pipeline_depth : uint64_t(arch_.vector.pipeline_cycles);
+  out.back().compute_cycles +=
+      on_array ? rates_.pipeline_depth : uint64_t(arch_.vector.pipeline_cycles);
 }
 
 void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_index,
@@ -323,8 +338,8 @@ void Tiler::PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op
       // One table row per token; rows laid out in token order (token ids are
       // not in the trace), converted to activations at one element per lane.
       item.load_kind = LoadKind::kWeights;
-      item.load_bytes = BitsToBytes(elements, WeightBits(op.weights, ArrayKind::kInt8Mac,
-                                                         arch_.packing.format));
+      item.load_bytes =
+          BitsToBytes(elements, WeightBits(op.weights, ArrayKind::kInt8Mac, arch_.packing.format));
       item.load_address = WeightAddress(op, item.load_bytes);
       item.vector_elementwise = elements;
       item.compute_cycles = CeilDiv(elements, lanes);
@@ -353,9 +368,10 @@ void Tiler::PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op
       item.vector_elementwise = elements;
       item.compute_cycles = CeilDiv(elements, lanes);
       item.store_address =
-          KvAddress(op) + uint64_t(std::max<int64_t>(0, step.context)) *
-                              BitsToBytes(uint64_t(op.n) / 2 * uint64_t(std::max<int64_t>(1, step.batch)),
-                                          double(op.kv_bits));
+          KvAddress(op) +
+          uint64_t(std::max<int64_t>(0, step.context)) *
+              BitsToBytes(uint64_t(op.n) / 2 * uint64_t(std::max<int64_t>(1, step.batch)),
+                          double(op.kv_bits));
       item.store_bytes = BitsToBytes(elements, double(op.kv_bits));
       break;
     case OpKind::kSoftmax: {

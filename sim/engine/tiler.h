@@ -24,13 +24,13 @@ namespace tritsim {
 
 // Derived hardware rates every unit agrees on.
 struct HardwareRates {
-  uint64_t core_period_ps = 1000;      // core clock period, rounded to 1 ps
-  uint64_t slot_bytes = 0;             // one double-buffer slot
-  uint64_t activation_bytes = 0;       // activation region
-  uint64_t pipeline_depth = 0;         // ceil(log2 F) adder levels + register cut
-  double array_ops_per_cycle = 0;      // 2 T F (one add per weight use counts as 2 ops)
-  double vector_ops_per_cycle = 0;     // 2 L
-  double dram_bytes_per_cycle = 0;     // peak DRAM bandwidth per core cycle
+  uint64_t core_period_ps = 1000;   // core clock period, rounded to 1 ps
+  uint64_t slot_bytes = 0;          // one double-buffer slot
+  uint64_t activation_bytes = 0;    // activation region
+  uint64_t pipeline_depth = 0;      // ceil(log2 F) adder levels + register cut
+  double array_ops_per_cycle = 0;   // 2 T F (one add per weight use counts as 2 ops)
+  double vector_ops_per_cycle = 0;  // 2 L
+  double dram_bytes_per_cycle = 0;  // peak DRAM bandwidth per core cycle
 };
 
 HardwareRates ComputeRates(const ArchConfig& arch);
@@ -43,8 +43,7 @@ class Tiler {
   // first marked first_of_op and the last last_of_op (an op always yields at
   // least one item). Throws SimError (exit 4) when even the smallest tile
   // does not fit, naming the op, the bytes needed and the capacity.
-  void Plan(const TraceOp& op, const TraceStep& step, int64_t op_index,
-            std::vector<WorkItem>& out);
+  void Plan(const TraceOp& op, const TraceStep& step, int64_t op_index, std::vector<WorkItem>& out);
 
   // Arithmetic ops of an op (2 per multiply-equivalent plus add, common
   // practice; 1 per elementwise or special-function result).
@@ -76,7 +75,7 @@ class Tiler {
   ArchConfig arch_;
   SimOptions options_;
   HardwareRates rates_;
-  bool activations_in_dram_ = false;   // the previous op's output was spilled
+  bool activations_in_dram_ = false;  // the previous op's output was spilled
   // DRAM layout: weight tensors packed one after another from 0; KV cache
   // and activation spill areas above them.
   std::map<std::tuple<int64_t, std::string>, uint64_t> weight_base_;

@@ -16,7 +16,7 @@ enum class Unit { kTreeArray, kVectorUnit };
 enum class LoadKind { kNone, kWeights, kActivations, kKvCache };
 
 struct WorkItem {
-  int64_t op_index = 0;       // position of the op in the trace
+  int64_t op_index = 0;  // position of the op in the trace
   bool first_of_op = false;
   bool last_of_op = false;
   Unit unit = Unit::kTreeArray;

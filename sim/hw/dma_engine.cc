@@ -41,7 +41,8 @@ std::string DmaEngine::state() const {
 }
 
 void DmaEngine::Transfer(const Job& job) {
-  const uint64_t start_ps = AlignUp(sc_time_stamp().value()) + uint64_t(config_.setup_cycles) * period_ps_;
+  const uint64_t start_ps =
+      AlignUp(sc_time_stamp().value()) + uint64_t(config_.setup_cycles) * period_ps_;
   const uint64_t now_ps = sc_time_stamp().value();
   if (start_ps > now_ps) wait(sc_time::from_value(start_ps - now_ps));
   const uint64_t done_ps =

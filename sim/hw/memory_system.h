@@ -34,8 +34,8 @@ class MemorySystem {
   virtual void Finish(uint64_t end_ps) = 0;
 
   virtual const DramStats& stats() const = 0;
-  virtual uint64_t burst_bytes() const = 0;         // bytes per request, all channels alike
-  virtual double peak_bytes_per_second() const = 0; // all channels, no refresh
+  virtual uint64_t burst_bytes() const = 0;          // bytes per request, all channels alike
+  virtual double peak_bytes_per_second() const = 0;  // all channels, no refresh
 };
 
 // REQUIRES: `dram` validated by the config loader (preset applied).

@@ -24,7 +24,8 @@ uint64_t Scratchpad::ReadWindow(uint64_t start_ps, uint64_t end_ps, uint64_t acc
     const uint64_t lo = std::max(w.start_ps, start_ps);
     const uint64_t hi = std::min(w.end_ps, end_ps);
     if (hi <= lo) continue;
-    overlapping_writes += static_cast<long double>(w.accesses) * (hi - lo) / (w.end_ps - w.start_ps);
+    overlapping_writes +=
+        static_cast<long double>(w.accesses) * (hi - lo) / (w.end_ps - w.start_ps);
   }
   const uint64_t both = std::min<uint64_t>(accesses, uint64_t(overlapping_writes));
   const uint64_t conflicts = both / uint64_t(config_.banks);

@@ -158,8 +158,7 @@ void Sequencer::RunItem(const WorkItem& item) {
   op.span_start_ps = std::min(op.span_start_ps, NowPs());
   const bool on_array = item.unit == Unit::kTreeArray;
   compute_state_ = on_array ? "the tree array" : "the vector unit";
-  const uint64_t conflicts =
-      on_array ? tree_array_.Execute(item) : vector_unit_.Execute(item);
+  const uint64_t conflicts = on_array ? tree_array_.Execute(item) : vector_unit_.Execute(item);
   const uint64_t now = NowPs();
   if (on_array) {
     stalls_.busy += item.compute_cycles;
@@ -199,8 +198,8 @@ void Sequencer::RetireOp(OpInFlight& op) {
   OpResult& result = layers_[op.result_index];
   const uint64_t span_cycles = (now - op.span_start_ps + period_ps_ - 1) / period_ps_;
   const HardwareRates& rates = tiler_.rates();
-  const double peak = op.unit == Unit::kTreeArray ? rates.array_ops_per_cycle
-                                                  : rates.vector_ops_per_cycle;
+  const double peak =
+      op.unit == Unit::kTreeArray ? rates.array_ops_per_cycle : rates.vector_ops_per_cycle;
   const double compute_bound = double(op.ops) / peak;
   const double memory_bound = double(op.dram_bytes) / rates.dram_bytes_per_cycle;
   if (result.cycles == 0 && result.ops == 0) result.start_cycle = op.span_start_ps / period_ps_;

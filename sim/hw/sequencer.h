@@ -52,7 +52,7 @@ class Sequencer : public sc_core::sc_module {
  private:
   struct OpInFlight {
     int64_t index = 0;
-    size_t result_index = 0;      // into layers_
+    size_t result_index = 0;  // into layers_
     uint64_t span_start_ps = UINT64_MAX;
     uint64_t ops = 0;
     uint64_t dram_bytes = 0;

@@ -11,17 +11,23 @@ namespace tritsim {
 namespace {
 
 nlohmann::ordered_json ByClassJson(const ByClass& c) {
-  return {{"attention", c.attention}, {"ffn", c.ffn}, {"embedding", c.embedding},
-          {"head", c.head}, {"norm", c.norm}};
+  return {{"attention", c.attention},
+          {"ffn", c.ffn},
+          {"embedding", c.embedding},
+          {"head", c.head},
+          {"norm", c.norm}};
 }
 
 // Weight storage on this design: ternary tensors under the packing on a
 // ternary array; every tensor at its native width on a MAC baseline.
 const ByClass& StorageOnArch(const ModelStats& stats, const ArchConfig& arch) {
   switch (arch.array.kind) {
-    case ArrayKind::kInt8Mac: return stats.weight_bytes_int8;
-    case ArrayKind::kFp16Mac: return stats.weight_bytes_fp16;
-    case ArrayKind::kTernary: break;
+    case ArrayKind::kInt8Mac:
+      return stats.weight_bytes_int8;
+    case ArrayKind::kFp16Mac:
+      return stats.weight_bytes_fp16;
+    case ArrayKind::kTernary:
+      break;
   }
   return arch.packing.format == TritPacking::kBase3 ? stats.weight_bytes_base3
                                                     : stats.weight_bytes_two_bit;
@@ -29,9 +35,12 @@ const ByClass& StorageOnArch(const ModelStats& stats, const ArchConfig& arch) {
 
 const char* ArrayKindName(ArrayKind kind) {
   switch (kind) {
-    case ArrayKind::kTernary: return "ternary";
-    case ArrayKind::kInt8Mac: return "int8_mac";
-    case ArrayKind::kFp16Mac: return "fp16_mac";
+    case ArrayKind::kTernary:
+      return "ternary";
+    case ArrayKind::kInt8Mac:
+      return "int8_mac";
+    case ArrayKind::kFp16Mac:
+      return "fp16_mac";
   }
   return "?";
 }
@@ -69,10 +78,13 @@ nlohmann::ordered_json InspectJson(const InspectInputs& in) {
                   {"base3", stats.weight_bytes_base3.total()},
                   {"int8", stats.weight_bytes_int8.total()},
                   {"fp16", stats.weight_bytes_fp16.total()}}}};
-  j["workload"] = {{"prefill", in.workload.prefill_tokens}, {"decode", in.workload.decode_tokens},
-                   {"context", in.workload.context_tokens}, {"batch", in.workload.batch}};
-  const double kv_tokens = double(in.workload.context_tokens + in.workload.prefill_tokens +
-                                  in.workload.decode_tokens) * double(in.workload.batch);
+  j["workload"] = {{"prefill", in.workload.prefill_tokens},
+                   {"decode", in.workload.decode_tokens},
+                   {"context", in.workload.context_tokens},
+                   {"batch", in.workload.batch}};
+  const double kv_tokens =
+      double(in.workload.context_tokens + in.workload.prefill_tokens + in.workload.decode_tokens) *
+      double(in.workload.batch);
   j["workload"]["kv_cache_bytes_at_end"] = stats.kv_bytes_per_token * kv_tokens;
   j["arch"] = {{"name", in.arch.name},
                {"array_kind", ArrayKindName(in.arch.array.kind)},
@@ -109,9 +121,11 @@ void PrintInspect(const InspectInputs& in, std::ostream& out) {
   out << "  ops per token   " << G(m["ops_per_token"].get<double>() / 1e9) << " Gop at context 0, +"
       << G(m["attention_ops_per_context_token"].get<double>() / 1e6) << " Mop per context token\n";
   out << "  peak compute    " << G(a["peak_ops_per_second"].get<double>() / 1e12) << " Top/s\n";
-  out << "  peak DRAM       " << G(a["dram_peak_bytes_per_second"].get<double>() / 1e9) << " GB/s\n";
-  out << "  ridge point     " << G(a["ridge_ops_per_byte"].get<double>()) << " op/B; batch-1 decode runs at "
-      << G(a["decode_intensity_ops_per_byte"].get<double>()) << " op/B ("
+  out << "  peak DRAM       " << G(a["dram_peak_bytes_per_second"].get<double>() / 1e9)
+      << " GB/s\n";
+  out << "  ridge point     " << G(a["ridge_ops_per_byte"].get<double>())
+      << " op/B; batch-1 decode runs at " << G(a["decode_intensity_ops_per_byte"].get<double>())
+      << " op/B ("
       << (a["decode_intensity_ops_per_byte"].get<double>() < a["ridge_ops_per_byte"].get<double>()
               ? "memory-bound"
               : "compute-bound")

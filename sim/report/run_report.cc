@@ -10,13 +10,17 @@
 namespace tritsim {
 namespace {
 
-double Seconds(uint64_t cycles, const RunResult& run) { return double(cycles) / (run.core_mhz * 1e6); }
+double Seconds(uint64_t cycles, const RunResult& run) {
+  return double(cycles) / (run.core_mhz * 1e6);
+}
 
 double Ratio(double num, double den) { return den > 0 ? num / den : 0.0; }
 
 const char* RegimeName(Regime r) { return r == Regime::kCompute ? "compute" : "memory"; }
 
-double Efficiency(const OpResult& layer) { return Ratio(double(layer.bound_cycles), double(layer.cycles)); }
+double Efficiency(const OpResult& layer) {
+  return Ratio(double(layer.bound_cycles), double(layer.cycles));
+}
 
 uint64_t DecodeTokensPerSequence(const RunReport& r) {
   return uint64_t(std::max<int64_t>(0, r.workload.decode_tokens));
@@ -74,9 +78,9 @@ Headline ComputeHeadline(const RunReport& r) {
                            : 0.0;
   h.dram_bandwidth_bytes_per_second = Ratio(bytes, h.seconds);
   const double channel_ps = double(run.sim_ps) * double(std::max<int64_t>(1, r.arch.dram.channels));
-  h.dram_bus_utilization = r.arch.dram.is_ideal()
-                               ? Ratio(h.dram_bandwidth_bytes_per_second, run.dram_peak_bytes_per_second)
-                               : Ratio(double(run.dram.busy_ps), channel_ps);
+  h.dram_bus_utilization = r.arch.dram.is_ideal() ? Ratio(h.dram_bandwidth_bytes_per_second,
+                                                          run.dram_peak_bytes_per_second)
+                                                  : Ratio(double(run.dram.busy_ps), channel_ps);
   h.refresh_fraction = Ratio(double(run.dram.refresh_ps), channel_ps);
   h.tree_utilization = Ratio(double(run.stalls.busy), double(run.cycles));
   h.vector_utilization = Ratio(double(run.vector_busy_cycles), double(run.cycles));
@@ -99,8 +103,10 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
   ordered_json j;
   j["schema"] = kRunSchema;
   j["design"] = {{"arch", run.arch_name}, {"model", run.model_name}, {"core_mhz", run.core_mhz}};
-  j["workload"] = {{"prefill", r.workload.prefill_tokens}, {"decode", r.workload.decode_tokens},
-                   {"context", r.workload.context_tokens}, {"batch", r.workload.batch}};
+  j["workload"] = {{"prefill", r.workload.prefill_tokens},
+                   {"decode", r.workload.decode_tokens},
+                   {"context", r.workload.context_tokens},
+                   {"batch", r.workload.batch}};
   j["totals"] = {{"cycles", run.cycles},
                  {"seconds", h.seconds},
                  {"tokens", run.tokens},
@@ -149,17 +155,22 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                  {"dram", r.energy.dram_joules},
                  {"decoder", r.energy.decoder_joules},
                  {"leakage", r.energy.leakage_joules}};
-  j["area"] = {{"array_mm2", r.area.array_mm2},     {"vector_mm2", r.area.vector_mm2},
-               {"sram_mm2", r.area.sram_mm2},       {"decoder_mm2", r.area.decoder_mm2},
-               {"other_mm2", r.area.other_mm2},     {"total_mm2", r.area.total_mm2()}};
-  j["arch"] = {{"peak_ops_per_second", run.peak_ops_per_second},
-               {"dram_peak_bytes_per_second", run.dram_peak_bytes_per_second},
-               {"ridge_ops_per_byte", Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second)}};
+  j["area"] = {{"array_mm2", r.area.array_mm2}, {"vector_mm2", r.area.vector_mm2},
+               {"sram_mm2", r.area.sram_mm2},   {"decoder_mm2", r.area.decoder_mm2},
+               {"other_mm2", r.area.other_mm2}, {"total_mm2", r.area.total_mm2()}};
+  j["arch"] = {
+      {"peak_ops_per_second", run.peak_ops_per_second},
+      {"dram_peak_bytes_per_second", run.dram_peak_bytes_per_second},
+      {"ridge_ops_per_byte", Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second)}};
   const EventCounts& e = run.events;
-  j["events"] = {{"weight_uses", e.weight_uses},         {"weight_uses_zero", e.weight_uses_zero},
-                 {"accumulator_adds", e.accumulator_adds}, {"decoder_bytes", e.decoder_bytes},
-                 {"vector_macs", e.vector_macs},         {"vector_special", e.vector_special},
-                 {"vector_elementwise", e.vector_elementwise}, {"sram_reads", e.sram_reads},
+  j["events"] = {{"weight_uses", e.weight_uses},
+                 {"weight_uses_zero", e.weight_uses_zero},
+                 {"accumulator_adds", e.accumulator_adds},
+                 {"decoder_bytes", e.decoder_bytes},
+                 {"vector_macs", e.vector_macs},
+                 {"vector_special", e.vector_special},
+                 {"vector_elementwise", e.vector_elementwise},
+                 {"sram_reads", e.sram_reads},
                  {"sram_writes", e.sram_writes}};
   ordered_json layers = ordered_json::array();
   const EnergyTable table = ResolveEnergyTable(r.arch.energy, r.arch.dram.preset);
@@ -192,16 +203,17 @@ std::string RunCsv(const RunReport& r) {
   for (const OpResult& layer : r.run.layers) {
     const EnergyBreakdown e = LayerEnergy(r, table, layer);
     char line[640];
-    std::snprintf(line, sizeof line,
-                  "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g,%.6g,%.6g,%.6g,%.6g\n",
-                  PhaseName(layer.op.phase), static_cast<long long>(layer.op.layer),
-                  layer.op.name.c_str(), OpKindName(layer.op.kind), TensorClassName(layer.op.tensor),
-                  static_cast<unsigned long long>(layer.cycles), Seconds(layer.cycles, r.run),
-                  static_cast<unsigned long long>(layer.ops),
-                  static_cast<unsigned long long>(layer.dram_bytes), layer.intensity(),
-                  static_cast<unsigned long long>(layer.bound_cycles), RegimeName(layer.regime),
-                  Efficiency(layer), e.total_joules(), e.arithmetic_joules, e.sram_joules,
-                  e.dram_joules, e.decoder_joules);
+    std::snprintf(
+        line, sizeof line,
+        "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g,%.6g,%.6g,%.6g,%.6g\n",
+        PhaseName(layer.op.phase), static_cast<long long>(layer.op.layer), layer.op.name.c_str(),
+        OpKindName(layer.op.kind), TensorClassName(layer.op.tensor),
+        static_cast<unsigned long long>(layer.cycles), Seconds(layer.cycles, r.run),
+        static_cast<unsigned long long>(layer.ops),
+        static_cast<unsigned long long>(layer.dram_bytes), layer.intensity(),
+        static_cast<unsigned long long>(layer.bound_cycles), RegimeName(layer.regime),
+        Efficiency(layer), e.total_joules(), e.arithmetic_joules, e.sram_joules, e.dram_joules,
+        e.decoder_joules);
     out << line;
   }
   return out.str();
@@ -215,13 +227,14 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
       << r.workload.decode_tokens << ", context " << r.workload.context_tokens << ", batch "
       << r.workload.batch << "\n";
   out << "  core clock      " << Fixed(run.core_mhz, 1) << " MHz; peak "
-      << Scaled(run.peak_ops_per_second, "op/s") << ", DRAM " << Scaled(run.dram_peak_bytes_per_second, "B/s")
-      << ", ridge " << Fixed(Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second), 1)
-      << " op/B\n\n";
+      << Scaled(run.peak_ops_per_second, "op/s") << ", DRAM "
+      << Scaled(run.dram_peak_bytes_per_second, "B/s") << ", ridge "
+      << Fixed(Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second), 1) << " op/B\n\n";
   out << "  time            " << run.cycles << " cycles = " << Time(h.seconds) << "\n";
   for (const PhaseResult& p : run.phases) {
     out << "    " << PhaseName(p.phase) << (p.phase == Phase::kDecode ? "        " : "       ")
-        << p.cycles << " cycles = " << Time(Seconds(p.cycles, run)) << ", " << p.tokens << " tokens\n";
+        << p.cycles << " cycles = " << Time(Seconds(p.cycles, run)) << ", " << p.tokens
+        << " tokens\n";
   }
   out << "  first token     " << Time(h.time_to_first_token_seconds) << "\n";
   if (h.time_per_output_token_seconds > 0) {
@@ -230,16 +243,18 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
   out << "  throughput      " << Fixed(h.tokens_per_second, 2) << " tokens/s\n\n";
   const StallBreakdown& s = run.stalls;
   const double c = double(std::max<uint64_t>(1, run.cycles));
-  out << "  tree array      busy " << Percent(s.busy / c) << ", DRAM wait " << Percent(s.dram_wait / c)
-      << ", SRAM conflict " << Percent(s.sram_conflict / c) << ", vector wait "
-      << Percent(s.vector_wait / c) << ", idle " << Percent(s.idle / c) << "\n";
+  out << "  tree array      busy " << Percent(s.busy / c) << ", DRAM wait "
+      << Percent(s.dram_wait / c) << ", SRAM conflict " << Percent(s.sram_conflict / c)
+      << ", vector wait " << Percent(s.vector_wait / c) << ", idle " << Percent(s.idle / c) << "\n";
   out << "  utilization     tree array " << Percent(h.tree_utilization) << ", vector unit "
       << Percent(h.vector_utilization) << ", SRAM ports " << Percent(h.sram_port_utilization)
       << ", DRAM bus " << Percent(h.dram_bus_utilization) << "\n";
-  out << "  DRAM            " << Scaled(h.dram_bandwidth_bytes_per_second, "B/s") << " achieved, row hits "
-      << Percent(run.dram.row_hit_rate()) << ", refresh " << Percent(h.refresh_fraction) << "\n\n";
+  out << "  DRAM            " << Scaled(h.dram_bandwidth_bytes_per_second, "B/s")
+      << " achieved, row hits " << Percent(run.dram.row_hit_rate()) << ", refresh "
+      << Percent(h.refresh_fraction) << "\n\n";
   out << "  energy          " << Fixed(r.energy.total_joules() * 1e3, 3) << " mJ total, "
-      << Fixed(h.joules_per_token * 1e3, 3) << " mJ/token, " << Fixed(h.picojoules_per_op, 3) << " pJ/op\n";
+      << Fixed(h.joules_per_token * 1e3, 3) << " mJ/token, " << Fixed(h.picojoules_per_op, 3)
+      << " pJ/op\n";
   const double e = std::max(1e-300, r.energy.total_joules());
   out << "    by component  arithmetic " << Percent(r.energy.arithmetic_joules / e) << ", SRAM "
       << Percent(r.energy.sram_joules / e) << ", DRAM " << Percent(r.energy.dram_joules / e)

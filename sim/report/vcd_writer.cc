@@ -51,7 +51,8 @@ std::string ActivityLog::ToVcd(const std::string& scope) const {
   size_t e = 0;
   while (e < edges.size()) {
     const uint64_t t = edges[e].first;
-    for (; e < edges.size() && edges[e].first == t; ++e) depth[edges[e].second.first] += edges[e].second.second;
+    for (; e < edges.size() && edges[e].first == t; ++e)
+      depth[edges[e].second.first] += edges[e].second.second;
     std::ostringstream changes;
     for (size_t s = 0; s < names_.size(); ++s) {
       const int value = depth[s] > 0 ? 1 : 0;

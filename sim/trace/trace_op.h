@@ -15,17 +15,17 @@ namespace tritsim {
 enum class Phase { kPrefill, kDecode };
 
 enum class OpKind {
-  kEmbed,        // embedding lookup: rows = tokens, n = width, weight read per token
-  kNorm,         // RMSNorm over n elements per row
-  kQuantize,     // per-token absmax requantization of n elements per row
-  kGemm,         // [m x k] activations times [k x n] weights -> [m x n]
-  kRope,         // positional rotation of q and k: n elements per row
-  kKvAppend,     // write this step's k and v (n elements per row) into the cache
-  kAttnScores,   // q . k over the cache: heads x m rows x context keys x head_dim
-  kSoftmax,      // heads x m rows x context
-  kAttnValues,   // weights . v over the cache: heads x m rows x context x head_dim
-  kActivation,   // activation function (times gate when gated) over n elements per row
-  kResidual      // residual add over n elements per row
+  kEmbed,       // embedding lookup: rows = tokens, n = width, weight read per token
+  kNorm,        // RMSNorm over n elements per row
+  kQuantize,    // per-token absmax requantization of n elements per row
+  kGemm,        // [m x k] activations times [k x n] weights -> [m x n]
+  kRope,        // positional rotation of q and k: n elements per row
+  kKvAppend,    // write this step's k and v (n elements per row) into the cache
+  kAttnScores,  // q . k over the cache: heads x m rows x context keys x head_dim
+  kSoftmax,     // heads x m rows x context
+  kAttnValues,  // weights . v over the cache: heads x m rows x context x head_dim
+  kActivation,  // activation function (times gate when gated) over n elements per row
+  kResidual     // residual add over n elements per row
 };
 
 // Which weight tensor class an op reads (parameter accounting, precision).
@@ -33,26 +33,26 @@ enum class TensorClass { kNone, kAttention, kFfn, kEmbedding, kHead, kNorm };
 
 struct TraceOp {
   Phase phase = Phase::kDecode;
-  int64_t step = 0;        // 0 for the prefill; decode steps count from 0
-  int64_t layer = -1;      // decoder block index, -1 outside the blocks
-  std::string name;        // e.g. "attn.qkv", "ffn.down", "head"
+  int64_t step = 0;    // 0 for the prefill; decode steps count from 0
+  int64_t layer = -1;  // decoder block index, -1 outside the blocks
+  std::string name;    // e.g. "attn.qkv", "ffn.down", "head"
   OpKind kind = OpKind::kGemm;
   TensorClass tensor = TensorClass::kNone;
   WeightFormat weights = WeightFormat::kTernary;  // meaningful when tensor has weights
 
-  int64_t m = 0;           // rows: batch x tokens of this step
-  int64_t n = 0;           // output columns (GEMM) or elements per row (elementwise)
-  int64_t k = 0;           // reduction length (GEMM), 0 otherwise
+  int64_t m = 0;  // rows: batch x tokens of this step
+  int64_t n = 0;  // output columns (GEMM) or elements per row (elementwise)
+  int64_t k = 0;  // reduction length (GEMM), 0 otherwise
 
   // Attention only.
-  int64_t heads = 0;       // query heads
-  int64_t kv_heads = 0;    // key/value heads
+  int64_t heads = 0;     // query heads
+  int64_t kv_heads = 0;  // key/value heads
   int64_t head_dim = 0;
-  int64_t context = 0;     // keys attended by the last row of this step
-  bool causal = false;     // prefill: row i attends to context - m + i + 1 keys
+  int64_t context = 0;  // keys attended by the last row of this step
+  bool causal = false;  // prefill: row i attends to context - m + i + 1 keys
 
-  int act_bits = 8;        // bits per activation element in and out
-  int kv_bits = 8;         // bits per KV-cache element
+  int act_bits = 8;            // bits per activation element in and out
+  int kv_bits = 8;             // bits per KV-cache element
   double zero_fraction = 0.0;  // fraction of zero trits in the weights (ternary only)
 };
 
@@ -61,9 +61,9 @@ struct TraceOp {
 struct TraceStep {
   Phase phase = Phase::kDecode;
   int64_t step = 0;
-  int64_t tokens = 1;      // new tokens per sequence in this step
+  int64_t tokens = 1;  // new tokens per sequence in this step
   int64_t batch = 1;
-  int64_t context = 0;     // tokens in the cache before this step
+  int64_t context = 0;  // tokens in the cache before this step
 };
 
 }  // namespace tritsim

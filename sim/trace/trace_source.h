@@ -12,13 +12,13 @@ namespace tritsim {
 
 // First record of every trace.
 struct TraceHeader {
-  int version = 1;             // trace format version (docs/trace-format.md)
-  std::string model;           // model name, informational
-  WorkloadConfig workload;     // the workload the trace was built for
+  int version = 1;          // trace format version (docs/trace-format.md)
+  std::string model;        // model name, informational
+  WorkloadConfig workload;  // the workload the trace was built for
 };
 
 struct TraceRecord {
-  bool is_step = false;        // true: `step` is valid; false: `op` is valid
+  bool is_step = false;  // true: `step` is valid; false: `op` is valid
   TraceStep step;
   TraceOp op;
 };

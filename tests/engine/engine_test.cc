@@ -34,7 +34,8 @@ RunResult RunRandomGemms(const ArchConfig& arch, unsigned seed) {
   for (int i = 0; i < 40; ++i) {
     const bool streaming = i % 8 == 0;  // a decode-like GEMM: one row, big weights
     const int64_t m = streaming ? 1 : int64_t(1) << m_dist(rng);
-    const int64_t n = (int64_t(1) << (streaming ? 13 : dim_dist(rng))) + 7 * i;  // not always tile multiples
+    const int64_t n =
+        (int64_t(1) << (streaming ? 13 : dim_dist(rng))) + 7 * i;  // not always tile multiples
     const int64_t k = (int64_t(1) << (streaming ? 12 : dim_dist(rng))) + 3 * i;
     TraceOp op = Gemm("gemm" + std::to_string(i), m, n, k);
     op.layer = i;
@@ -51,7 +52,8 @@ void ExpectNoOpBeatsRoofline(const RunResult& run) {
     // The bound itself, recomputed here from the design's peaks.
     const double seconds_per_cycle = 1.0 / (run.core_mhz * 1e6);
     const double compute = double(layer.ops) / (run.peak_ops_per_second * seconds_per_cycle);
-    const double memory = double(layer.dram_bytes) / (run.dram_peak_bytes_per_second * seconds_per_cycle);
+    const double memory =
+        double(layer.dram_bytes) / (run.dram_peak_bytes_per_second * seconds_per_cycle);
     EXPECT_GE(double(layer.cycles) + 1.0, std::max(compute, memory)) << layer.op.name;
   }
   ExpectStallsSumToTotal(run);
@@ -67,17 +69,20 @@ TEST(EngineRoofline, RandomGemmsOnSmallSramTwoBitDesignNeverBeatTheBound) {
 }
 
 TEST(EngineRoofline, RandomGemmsOnWideArrayHbmDesignNeverBeatTheBound) {
-  ExpectNoOpBeatsRoofline(RunRandomGemms(
-      DefaultArch({{"array.trees", "256"}, {"array.fan_in", "128"}, {"dram.preset", "hbm2e"},
-                   {"dram.channels", "8"}, {"sram.capacity_kib", "8192"}}),
-      3));
+  ExpectNoOpBeatsRoofline(RunRandomGemms(DefaultArch({{"array.trees", "256"},
+                                                      {"array.fan_in", "128"},
+                                                      {"dram.preset", "hbm2e"},
+                                                      {"dram.channels", "8"},
+                                                      {"sram.capacity_kib", "8192"}}),
+                                         3));
 }
 
 TEST(EngineRoofline, RandomGemmsOnLpddr5DesignNeverBeatTheBound) {
-  ExpectNoOpBeatsRoofline(RunRandomGemms(
-      DefaultArch({{"dram.preset", "lpddr5-6400"}, {"dram.channels", "4"},
-                   {"clock.core_mhz", "800"}, {"array.trees", "32"}}),
-      4));
+  ExpectNoOpBeatsRoofline(RunRandomGemms(DefaultArch({{"dram.preset", "lpddr5-6400"},
+                                                      {"dram.channels", "4"},
+                                                      {"clock.core_mhz", "800"},
+                                                      {"array.trees", "32"}}),
+                                         4));
 }
 
 TEST(EngineRoofline, RandomGemmsOnIdealMemoryBeatNothingAndLargeStreamsComeClose) {
@@ -102,10 +107,12 @@ TEST(EngineExactness, OnChipGemmTakesTheClosedFormCycleCount) {
   const ArchConfig arch = DefaultArch();
   const uint64_t T = uint64_t(arch.array.trees), F = uint64_t(arch.array.fan_in);
   const uint64_t M = 96, N = 1000, K = 3000;
-  const uint64_t depth = uint64_t(std::ceil(std::log2(double(F)))) + uint64_t(arch.array.register_cut);
+  const uint64_t depth =
+      uint64_t(std::ceil(std::log2(double(F)))) + uint64_t(arch.array.register_cut);
   // Base-3 decoder: F*T trits = F*T/5 bytes per pass, decoder_bytes_per_cycle
   // per cycle; with M = 96 rows the rows, not the decoder, set the pass time.
-  const uint64_t decode_cycles = CeilDiv(CeilDiv(F * T, 5), uint64_t(arch.packing.decoder_bytes_per_cycle));
+  const uint64_t decode_cycles =
+      CeilDiv(CeilDiv(F * T, 5), uint64_t(arch.packing.decoder_bytes_per_cycle));
   ASSERT_LT(decode_cycles, M);
   const uint64_t expected = CeilDiv(N, T) * CeilDiv(K, F) * M + depth;
 
@@ -179,8 +186,8 @@ TEST_P(EngineBatchSweep, ProjectionsFollowTheRoofline) {
     if (layer.op.kind != OpKind::kGemm || layer.op.layer < 0) continue;
     const double seconds = double(layer.cycles) / (run.core_mhz * 1e6);
     const double achieved = double(layer.ops) / seconds;
-    const double roof = std::min(run.peak_ops_per_second,
-                                 run.dram_peak_bytes_per_second * layer.intensity());
+    const double roof =
+        std::min(run.peak_ops_per_second, run.dram_peak_bytes_per_second * layer.intensity());
     EXPECT_LE(achieved, roof * 1.0001) << layer.op.name;
     // Margin: refresh (4.5%), row switches, DMA setup and the pipeline fill
     // keep real ops below the roof; 35% covers the small shapes of a 2-layer run.
@@ -200,8 +207,8 @@ TEST_P(EngineBatchSweep, ProjectionsFollowTheRoofline) {
 INSTANTIATE_TEST_SUITE_P(Batches, EngineBatchSweep, ::testing::Values(1, 4, 16, 64, 256, 512));
 
 TEST(EngineErrors, TileThatCannotFitIsASimulationErrorNamingTheOp) {
-  const ArchConfig arch = DefaultArch({{"sram.capacity_kib", "16"}, {"array.trees", "512"},
-                                       {"array.fan_in", "512"}});
+  const ArchConfig arch =
+      DefaultArch({{"sram.capacity_kib", "16"}, {"array.trees", "512"}, {"array.fan_in", "512"}});
   VectorTrace trace = VectorTrace::OneStep({Gemm("ffn.big", 1, 4096, 4096)});
   try {
     RunSimulation(arch, trace, SimOptions{});
