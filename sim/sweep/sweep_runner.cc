@@ -45,14 +45,21 @@ class StopSignals {
     sigemptyset(&sa.sa_mask);
     ::sigaction(SIGINT, &sa, &old_int_);
     ::sigaction(SIGTERM, &sa, &old_term_);
+    // An inherited SIG_IGN for SIGCHLD would reap children behind waitpid's back.
+    struct sigaction child;
+    std::memset(&child, 0, sizeof child);
+    child.sa_handler = SIG_DFL;
+    sigemptyset(&child.sa_mask);
+    ::sigaction(SIGCHLD, &child, &old_child_);
   }
   ~StopSignals() {
     ::sigaction(SIGINT, &old_int_, nullptr);
     ::sigaction(SIGTERM, &old_term_, nullptr);
+    ::sigaction(SIGCHLD, &old_child_, nullptr);
   }
 
  private:
-  struct sigaction old_int_, old_term_;
+  struct sigaction old_int_, old_term_, old_child_;
 };
 
 struct Running {
@@ -182,7 +189,8 @@ SweepRunSummary RunSweepPoints(const SweepPlan& plan, const std::vector<const Sw
   SweepRunSummary summary;
   const auto elapsed = [&] { return std::chrono::duration<double>(Clock::now() - start).count(); };
   if (options.progress) DrawProgress(0, todo.size(), 0, 0.0);
-  while (!pending.empty() || !running.empty()) {
+  // Starts points until `jobs` run or none is left.
+  const auto fill = [&] {
     while (!g_stop_signal && int(running.size()) < options.jobs && !pending.empty()) {
       Running r;
       r.point = pending.front();
@@ -191,8 +199,14 @@ SweepRunSummary RunSweepPoints(const SweepPlan& plan, const std::vector<const Sw
       r.stderr_path = (fs::path(options.points_dir) / (r.point->id + ".stderr")).string();
       running[Spawn(options, PointRunArgs(plan, *r.point, r.json_path), r.stderr_path)] = r;
     }
+  };
+  fill();
+  while (!running.empty()) {
     int status = 0;
     const pid_t pid = g_stop_signal ? -1 : ::waitpid(-1, &status, 0);
+    if (pid < 0 && errno == ECHILD && !g_stop_signal) {
+      throw Error(ExitCode::kInternal, "sweep: lost track of the point processes (ECHILD)");
+    }
     if (g_stop_signal) {
       if (pid > 0) running.erase(pid);  // reaped during the stop: not recorded
       StopChildren(running);
@@ -206,6 +220,7 @@ SweepRunSummary RunSweepPoints(const SweepPlan& plan, const std::vector<const Sw
     if (it == running.end()) continue;  // EINTR, or a child that is not ours
     const Running done = it->second;
     running.erase(it);
+    fill();  // the next point starts before this row is synced to disk
     const std::vector<std::string> row =
         PointRow(*done.point, status, ReadText(done.stderr_path), done.json_path);
     fs::remove(done.stderr_path, ec);
