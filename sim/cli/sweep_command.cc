@@ -7,6 +7,7 @@
 #include <boost/program_options.hpp>
 #include <cstdio>
 #include <filesystem>
+#include <iomanip>
 #include <iostream>
 #include <set>
 #include <thread>
@@ -211,8 +212,8 @@ int RunPoints(const SweepPlan& plan, const SweepArgs& a) {
   if (!a.quiet) {
     std::cerr << "tritsim sweep: " << plan.file.name << ": ran " << s.ran << " points (" << s.ok
               << " ok, " << s.failed << " failed), " << selected.size() - todo.size()
-              << " already in " << a.out << ", " << s.wall_seconds << " s with " << options.jobs
-              << " jobs\n";
+              << " already in " << a.out << ", " << std::fixed << std::setprecision(2)
+              << s.wall_seconds << " s with " << options.jobs << " jobs\n";
   }
   if (!a.plots.empty()) DrawAxisPlot(a.out, a);
   if (s.ran > 0 && s.ok == 0) {
@@ -274,10 +275,21 @@ int Pareto(const SweepArgs& a) {
   return 0;
 }
 
+bool WantsHelp(const Args& args) {
+  return std::find(args.begin(), args.end(), "--help") != args.end() ||
+         std::find(args.begin(), args.end(), "-h") != args.end();
+}
+
 int Merge(const Args& args) {
   SweepArgs a;
   po::options_description desc("sweep merge options");
   AddOptions(desc, a);
+  if (WantsHelp(args)) {
+    std::cout << "usage: tritsim sweep merge FILE --out CSV SHARD.csv...\n\n"
+                 "Combines the shard CSVs of sweep FILE into one CSV in point order, checking\n"
+                 "that every point is present exactly once (see docs/sweeps.md).\n";
+    return 0;
+  }
   Parse("sweep merge", args, desc, a);
   if (a.inputs.size() < 2) {
     throw UsageError("tritsim sweep merge: expected the sweep FILE and at least one shard CSV");
@@ -300,8 +312,7 @@ int SweepCommand(const Args& args) {
   SweepArgs a;
   po::options_description desc("sweep options");
   AddOptions(desc, a);
-  if (std::find(args.begin(), args.end(), "--help") != args.end() ||
-      std::find(args.begin(), args.end(), "-h") != args.end()) {
+  if (WantsHelp(args)) {
     std::cout << kUsage << "\n\n" << desc << "\n";
     return 0;
   }
