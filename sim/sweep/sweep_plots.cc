@@ -229,7 +229,12 @@ std::string WriteAxisPlot(const std::string& dir, const CsvTable& table,
   std::map<std::string, std::vector<std::pair<std::string, double>>> series;
   std::vector<std::string> axis_values;
   std::vector<double> ys;
-  for (const std::vector<std::string>& row : table.rows) {
+  // Rows in point order (ids start with the zero-padded plan index), so
+  // series and legend follow the sweep file, not completion order.
+  std::vector<std::vector<std::string>> rows = table.rows;
+  std::stable_sort(rows.begin(), rows.end(),
+                   [](const auto& x, const auto& y) { return x[0] < y[0]; });
+  for (const std::vector<std::string>& row : rows) {
     double y = 0;
     if (row[status_col] != kStatusOk || !ParseFinite(row[metric_col], y)) continue;
     std::string label;
@@ -269,7 +274,7 @@ std::string WriteAxisPlot(const std::string& dir, const CsvTable& table,
   }
   if (series_names.empty()) throw PlotError(dir, name + ": no ok rows with a value of " + metric);
   std::ostringstream gp;
-  gp << ScriptHeader(name, metric + " against " + axis)
+  gp << ScriptHeader(name, metric + " against " + axis) << "set key below\n"
      << (place.categorical ? "" : MaybeLog("x", xs)) << MaybeLog("y", ys) << "set xlabel "
      << Quote(axis) << "\nset ylabel " << Quote(metric) << "\n"
      << "set title " << Quote(metric + " by " + axis) << "\n"
