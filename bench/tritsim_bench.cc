@@ -1,0 +1,297 @@
+// tritsim_bench: how fast the simulator runs on the demo design points, and
+// how that compares with the raw cost of one SystemC timed wait on the same
+// machine (docs/performance.md).
+//
+// Each case runs the real `tritsim run` binary as a child process, `repeat`
+// times; wall time is the minimum over the repeats (the least disturbed by
+// other load), peak resident memory the maximum. Simulated cycles and DRAM
+// requests come from the run's JSON report. The timed-wait loop runs in
+// forked children, since SystemC elaborates once per process.
+//
+// Output: a Markdown report on stdout (scripts/bench writes it to
+// bench/results.md); progress on stderr. Exit 0 when every run succeeded
+// (targets missed are reported, not errors), 1 on a failed run, 2 on bad
+// arguments.
+#include <unistd.h>
+
+#include <algorithm>
+#include <cstdio>
+#include <cstdlib>
+#include <fstream>
+#include <iostream>
+#include <sstream>
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+#include <systemc>  // declares sc_main, which libsystemc's main() calls
+
+#include "child_process.h"
+#include "timed_wait_loop.h"
+
+namespace tritsim_bench {
+namespace {
+
+// libsystemc's main() prints its banner before sc_main() unless this is set.
+const bool kQuietBanner = ::setenv("SYSTEMC_DISABLE_COPYRIGHT_MESSAGE", "1", 0) == 0;
+
+constexpr int kDefaultRepeat = 3;
+constexpr long kDefaultWaits = 10'000'000;  // about 1.5 s at ~150 ns per wait
+constexpr double kNsPerSecond = 1e9;
+constexpr double kKibPerMib = 1024.0;
+
+// Targets of the performance issue (docs/performance.md).
+constexpr double kCase1MaxWallSeconds = 0.5;
+constexpr double kCase3MaxWallSeconds = 5.0;
+constexpr double kMaxRequestToWaitRatio = 0.3;
+constexpr double kMaxPeakRssMib = 200.0;
+constexpr double kMaxRssGrowthFraction = 0.10;  // case 4 against case 1
+
+struct BenchCase {
+  std::string id;
+  std::string title;
+  std::vector<std::string> args;  // after `tritsim run`, paths relative to the repo root
+};
+
+std::vector<BenchCase> Cases() {
+  return {
+      {"1",
+       "meadowlark-3b, 1 decode token at context 2048, heron-edge-ddr4",
+       {"--model", "models/meadowlark-3b.yaml", "--arch", "configs/heron-edge-ddr4.yaml",
+        "--decode", "1", "--context", "2048"}},
+      {"2",
+       "wren-0.7b, 128 decode tokens, finch-phone-lpddr5",
+       {"--model", "models/wren-0.7b.yaml", "--arch", "configs/finch-phone-lpddr5.yaml", "--decode",
+        "128"}},
+      {"3",
+       "meadowlark-3b, 512-token prefill, osprey-card-hbm2e",
+       {"--model", "models/meadowlark-3b.yaml", "--arch", "configs/osprey-card-hbm2e.yaml",
+        "--prefill", "512", "--decode", "0"}},
+      {"4",
+       "condor-13b, 1 decode token at context 2048, heron-edge-ddr4",
+       {"--model", "models/condor-13b.yaml", "--arch", "configs/heron-edge-ddr4.yaml", "--decode",
+        "1", "--context", "2048"}},
+  };
+}
+
+struct Options {
+  std::string tritsim;            // path of the tritsim binary
+  std::string root = ".";         // repository root (models/, configs/)
+  std::string work_dir = "/tmp";  // where run JSONs go (removed afterwards)
+  int repeat = kDefaultRepeat;
+  long waits = kDefaultWaits;
+  std::vector<std::string> only;  // case ids to run; empty: all
+};
+
+struct CaseFigures {
+  BenchCase spec;
+  double wall_seconds = 0.0;  // min over repeats
+  double cpu_seconds = 0.0;   // of the fastest repeat
+  long peak_rss_kib = 0;      // max over repeats
+  uint64_t cycles = 0;
+  uint64_t dram_requests = 0;  // dram.reads + dram.writes
+};
+
+const char* kUsage =
+    "usage: tritsim_bench --tritsim PATH [--root DIR] [--work DIR] [--repeat N]\n"
+    "                     [--waits N] [--case ID]...\n"
+    "  --tritsim PATH  the tritsim binary to measure\n"
+    "  --root DIR      repository root holding models/ and configs/ (default .)\n"
+    "  --work DIR      scratch directory for run reports (default /tmp)\n"
+    "  --repeat N      runs per case and timed-wait measurements (default 3)\n"
+    "  --waits N       timed waits per measurement (default 10000000)\n"
+    "  --case ID       run only this case (1..4), repeatable\n";
+
+[[noreturn]] void UsageError(const std::string& message) {
+  std::cerr << "tritsim_bench: " << message << "\n" << kUsage;
+  std::exit(2);
+}
+
+long PositiveNumber(const std::string& flag, const std::string& text) {
+  char* end = nullptr;
+  const long value = std::strtol(text.c_str(), &end, 10);
+  if (end == text.c_str() || *end != '\0' || value <= 0)
+    UsageError(flag + " needs a positive integer, got '" + text + "'");
+  return value;
+}
+
+Options ParseOptions(int argc, char** argv) {
+  Options o;
+  for (int i = 1; i < argc; ++i) {
+    const std::string flag = argv[i];
+    if (flag == "--help" || flag == "-h") {
+      std::cout << kUsage;
+      std::exit(0);
+    }
+    if (i + 1 >= argc) UsageError(flag + " needs a value");
+    const std::string value = argv[++i];
+    if (flag == "--tritsim")
+      o.tritsim = value;
+    else if (flag == "--root")
+      o.root = value;
+    else if (flag == "--work")
+      o.work_dir = value;
+    else if (flag == "--repeat")
+      o.repeat = int(PositiveNumber(flag, value));
+    else if (flag == "--waits")
+      o.waits = PositiveNumber(flag, value);
+    else if (flag == "--case")
+      o.only.push_back(value);
+    else
+      UsageError("unknown option " + flag);
+  }
+  if (o.tritsim.empty()) UsageError("--tritsim is required");
+  return o;
+}
+
+double MeasureTimedWaitNs(const Options& o) {
+  double best = 0.0;
+  for (int r = 0; r < o.repeat; ++r) {
+    const double ns = RunForkedForValue(TimedWaitNs, o.waits);
+    best = r == 0 ? ns : std::min(best, ns);
+  }
+  return best;
+}
+
+std::vector<std::string> RunCommand(const Options& o, const BenchCase& c,
+                                    const std::string& json_path) {
+  std::vector<std::string> argv = {o.tritsim, "run"};
+  for (size_t i = 0; i < c.args.size(); ++i) {
+    const bool is_path = i > 0 && (c.args[i - 1] == "--model" || c.args[i - 1] == "--arch");
+    argv.push_back(is_path ? o.root + "/" + c.args[i] : c.args[i]);
+  }
+  argv.insert(argv.end(), {"--json", json_path, "-q"});
+  return argv;
+}
+
+// Reads the figures the speed is measured against from a run's JSON report.
+void ReadReport(const std::string& json_path, CaseFigures& f) {
+  std::ifstream in(json_path);
+  if (!in) throw std::runtime_error("cannot read " + json_path);
+  const nlohmann::json report = nlohmann::json::parse(in);
+  f.cycles = report.at("totals").at("cycles").get<uint64_t>();
+  f.dram_requests = report.at("dram").at("reads").get<uint64_t>() +
+                    report.at("dram").at("writes").get<uint64_t>();
+}
+
+CaseFigures MeasureCase(const Options& o, const BenchCase& c) {
+  const std::string json_path =
+      o.work_dir + "/tritsim_bench_" + std::to_string(::getpid()) + "_" + c.id + ".json";
+  CaseFigures f;
+  f.spec = c;
+  for (int r = 0; r < o.repeat; ++r) {
+    const ChildMeasurement m = RunChild(RunCommand(o, c, json_path));
+    if (m.exit_code != 0)
+      throw std::runtime_error("case " + c.id + ": tritsim exited with " +
+                               std::to_string(m.exit_code));
+    std::cerr << "  case " << c.id << " run " << r + 1 << ": " << m.wall_seconds << " s, "
+              << m.peak_rss_kib << " KiB\n";
+    if (r == 0 || m.wall_seconds < f.wall_seconds) {
+      f.wall_seconds = m.wall_seconds;
+      f.cpu_seconds = m.cpu_seconds;
+    }
+    f.peak_rss_kib = std::max(f.peak_rss_kib, m.peak_rss_kib);
+  }
+  ReadReport(json_path, f);
+  std::remove(json_path.c_str());
+  return f;
+}
+
+std::string Fixed(double value, int digits) {
+  char text[64];
+  std::snprintf(text, sizeof text, "%.*f", digits, value);
+  return text;
+}
+
+double NsPerRequest(const CaseFigures& f) {
+  return f.dram_requests ? f.wall_seconds * kNsPerSecond / double(f.dram_requests) : 0.0;
+}
+double RssMib(const CaseFigures& f) { return double(f.peak_rss_kib) / kKibPerMib; }
+
+void PrintCaseTable(const std::vector<CaseFigures>& cases, double wait_ns, int repeat) {
+  std::cout << "| case | workload | wall s (min of " << repeat
+            << ") | CPU s | simulated cycles | Mcycles / wall s | DRAM requests | "
+               "M requests / wall s | wall ns / request | ratio to timed wait | peak RSS MiB |\n"
+            << "| --- | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |\n";
+  for (const CaseFigures& f : cases) {
+    const double ns = NsPerRequest(f);
+    std::cout << "| " << f.spec.id << " | " << f.spec.title << " | " << Fixed(f.wall_seconds, 3)
+              << " | " << Fixed(f.cpu_seconds, 3) << " | " << f.cycles << " | "
+              << Fixed(double(f.cycles) / f.wall_seconds / 1e6, 1) << " | " << f.dram_requests
+              << " | " << Fixed(double(f.dram_requests) / f.wall_seconds / 1e6, 2) << " | "
+              << Fixed(ns, 1) << " | " << Fixed(ns / wait_ns, 3) << " | " << Fixed(RssMib(f), 1)
+              << " |\n";
+  }
+}
+
+const CaseFigures* Find(const std::vector<CaseFigures>& cases, const std::string& id) {
+  for (const CaseFigures& f : cases)
+    if (f.spec.id == id) return &f;
+  return nullptr;
+}
+
+void PrintTarget(const std::string& target, const std::string& measured, bool met) {
+  std::cout << "| " << target << " | " << measured << " | " << (met ? "yes" : "**no**") << " |\n";
+}
+
+void PrintTargets(const std::vector<CaseFigures>& cases, double wait_ns) {
+  std::cout << "| target | measured | met |\n| --- | --- | --- |\n";
+  if (const CaseFigures* c1 = Find(cases, "1"))
+    PrintTarget("case 1 wall < " + Fixed(kCase1MaxWallSeconds, 1) + " s",
+                Fixed(c1->wall_seconds, 3) + " s", c1->wall_seconds < kCase1MaxWallSeconds);
+  if (const CaseFigures* c3 = Find(cases, "3"))
+    PrintTarget("case 3 wall < " + Fixed(kCase3MaxWallSeconds, 1) + " s",
+                Fixed(c3->wall_seconds, 3) + " s", c3->wall_seconds < kCase3MaxWallSeconds);
+  for (const CaseFigures& f : cases) {
+    const double ratio = NsPerRequest(f) / wait_ns;
+    PrintTarget("case " + f.spec.id + " wall ns / request <= " + Fixed(kMaxRequestToWaitRatio, 1) +
+                    " x timed wait (" + Fixed(kMaxRequestToWaitRatio * wait_ns, 1) + " ns)",
+                Fixed(NsPerRequest(f), 1) + " ns (" + Fixed(ratio, 3) + " x)",
+                ratio <= kMaxRequestToWaitRatio);
+  }
+  for (const CaseFigures& f : cases)
+    PrintTarget("case " + f.spec.id + " peak RSS < " + Fixed(kMaxPeakRssMib, 0) + " MiB",
+                Fixed(RssMib(f), 1) + " MiB", RssMib(f) < kMaxPeakRssMib);
+  const CaseFigures* c1 = Find(cases, "1");
+  const CaseFigures* c4 = Find(cases, "4");
+  if (c1 && c4) {
+    const double growth = RssMib(*c4) / RssMib(*c1) - 1.0;
+    PrintTarget("case 4 peak RSS within " + Fixed(kMaxRssGrowthFraction * 100, 0) + "% of case 1",
+                Fixed(growth * 100, 1) + "%", growth <= kMaxRssGrowthFraction);
+  }
+}
+
+bool Selected(const Options& o, const BenchCase& c) {
+  return o.only.empty() || std::find(o.only.begin(), o.only.end(), c.id) != o.only.end();
+}
+
+int Main(int argc, char** argv) {
+  const Options o = ParseOptions(argc, argv);
+  std::cerr << "timed-wait loop: " << o.repeat << " x " << o.waits << " waits\n";
+  const double wait_ns = MeasureTimedWaitNs(o);
+  std::vector<CaseFigures> cases;
+  for (const BenchCase& c : Cases()) {
+    if (!Selected(o, c)) continue;
+    std::cerr << "case " << c.id << ": " << c.title << "\n";
+    cases.push_back(MeasureCase(o, c));
+  }
+  PrintCaseTable(cases, wait_ns, o.repeat);
+  std::cout << "\nRaw SystemC timed wait (one SC_THREAD looping on wait(1, SC_NS), own process): "
+            << Fixed(wait_ns, 1) << " ns per wait (min of " << o.repeat << " runs of " << o.waits
+            << " waits).\n\n";
+  PrintTargets(cases, wait_ns);
+  return 0;
+}
+
+}  // namespace
+}  // namespace tritsim_bench
+
+int sc_main(int argc, char** argv) {
+  try {
+    return tritsim_bench::Main(argc, argv);
+  } catch (const std::exception& e) {
+    std::cerr << "tritsim_bench: " << e.what() << "\n";
+    return 1;
+  }
+}
