@@ -8,8 +8,13 @@ TRITSIM=$1
 SRC=$2
 W=$(mktemp -d /tmp/tritsim-resume-XXXXXX)
 sweep_pid=
+orphans=
 cleanup() {
   if [ -n "$sweep_pid" ]; then kill -9 "$sweep_pid" 2>/dev/null || true; fi
+  # Point runs orphaned by the kill finish on their own; wait for them (by PID).
+  for pid in $orphans; do
+    for _ in $(seq 1 300); do kill -0 "$pid" 2>/dev/null || break; sleep 0.1; done
+  done
   rm -rf "$W"
 }
 trap cleanup EXIT
@@ -36,6 +41,7 @@ for _ in $(seq 1 600); do
   [ "$(rows)" -ge 1 ] && break
   sleep 0.02
 done
+orphans=$(pgrep -P "$sweep_pid" || true)
 kill -9 "$sweep_pid"
 wait "$sweep_pid" 2>/dev/null || true
 sweep_pid=
