@@ -21,17 +21,27 @@ namespace {
 
 namespace fs = std::filesystem;
 
-// 3 x 4 = 12 points of a 2-layer Wren-0.7B decode step (fast: ~0.1 s each).
+// Two axes, 3 x 4 = 12 points of one decode step of Wren-0.7B cut to 2
+// layers (written beside the sweep by the fixture; about 0.05 s a point).
 const char* const kSweep =
     "name: wren-small\n"
     "base:\n"
-    "  model: " TRITSIM_SOURCE_DIR
-    "/models/wren-0.7b.yaml\n"
+    "  model: wren-2-layers.yaml\n"
     "  workload: {decode: 1}\n"
     "axes:\n"
     "  arch.array.trees: [32, 64, 128]\n"
-    "  workload.batch: {from: 1, to: 64, factor: 4}\n"
-    "  model.layers: [2]\n";
+    "  workload.batch: {from: 1, to: 64, factor: 4}\n";
+
+// models/wren-0.7b.yaml with `layers: 26` replaced by `layers: 2`.
+std::string TwoLayerWren() {
+  std::ifstream in(TRITSIM_SOURCE_DIR "/models/wren-0.7b.yaml");
+  std::ostringstream text;
+  text << in.rdbuf();
+  std::string yaml = text.str();
+  const size_t at = yaml.find("\nlayers: 26");
+  if (at != std::string::npos) yaml.replace(at, 11, "\nlayers: 2");
+  return yaml;
+}
 
 class SweepRunTest : public ::testing::Test {
  protected:
@@ -41,6 +51,9 @@ class SweepRunTest : public ::testing::Test {
     dir_ = tmpl;
     sweep_ = dir_ + "/wren-small.yaml";
     std::ofstream(sweep_) << kSweep;
+    const std::string model = TwoLayerWren();
+    ASSERT_NE(model.find("\nlayers: 2\n"), std::string::npos) << "wren-0.7b.yaml changed shape";
+    std::ofstream(dir_ + "/wren-2-layers.yaml") << model;
   }
   void TearDown() override { fs::remove_all(dir_); }
 
@@ -89,9 +102,8 @@ TEST_F(SweepRunTest, EveryRowMatchesTheSameRunAlone) {
     ASSERT_EQ(row[col("status")], "ok") << row[col("error")];
     EXPECT_TRUE(ids.insert(row[0]).second) << "duplicate " << row[0];
     const std::string alone = Path("alone-" + row[0] + ".json");
-    ASSERT_EQ(Tritsim("run --model " TRITSIM_SOURCE_DIR "/models/wren-0.7b.yaml --set "
-                      "arch.array.trees=" +
-                      row[col("arch.array.trees")] + " --set model.layers=2 --decode 1 --batch " +
+    ASSERT_EQ(Tritsim("run --model " + Path("wren-2-layers.yaml") + " --set arch.array.trees=" +
+                      row[col("arch.array.trees")] + " --decode 1 --batch " +
                       row[col("workload.batch")] + " --json " + alone + " -q"),
               0)
         << Err();
@@ -159,11 +171,11 @@ TEST_F(SweepRunTest, FailingPointIsRecordedAndTheSweepGoesOn) {
   ASSERT_EQ(Tritsim("sweep " + sweep_ + " --out " + Path("f.csv") + " --jobs 2 -q"), 0) << Err();
   const CsvTable t = ReadCsvFile(Path("f.csv"));
   ASSERT_EQ(t.rows.size(), 12u);
-  // Columns: id, 3 axes, status, error, the first metric ...
-  ASSERT_EQ(t.header[4], "status");
+  // Columns: id, 2 axes, status, error, the first metric ...
+  ASSERT_EQ(t.header[3], "status");
   for (const std::vector<std::string>& row : t.rows) {
-    const std::string& status = row[4];
-    const std::string& error = row[5];
+    const std::string& status = row[3];
+    const std::string& error = row[4];
     if (row[0] != ids[3]) {
       EXPECT_EQ(status, "ok") << error;
       continue;
@@ -172,7 +184,7 @@ TEST_F(SweepRunTest, FailingPointIsRecordedAndTheSweepGoesOn) {
     EXPECT_EQ(error.rfind("exit 3: ", 0), 0u) << error;
     EXPECT_NE(error.find("cannot rename"), std::string::npos) << error;
     EXPECT_EQ(row.back(), "");  // no json_path
-    EXPECT_EQ(row[6], "");      // no metrics
+    EXPECT_EQ(row[5], "");      // no metrics
   }
 }
 
