@@ -24,7 +24,6 @@ extern "C" void OnInterrupt(int signal_number) {
 
 void InstallInterruptHandler() {
   std::signal(SIGINT, OnInterrupt);
-  std::signal(SIGTERM, OnInterrupt);
 }
 
 bool InterruptRequested() { return g_signal.load(std::memory_order_relaxed) != 0; }
@@ -33,8 +32,6 @@ const char* InterruptSignalName() {
   switch (g_signal.load(std::memory_order_relaxed)) {
     case SIGINT:
       return "SIGINT";
-    case SIGTERM:
-      return "SIGTERM";
     case 0:
       return "";
     default:

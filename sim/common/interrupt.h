@@ -1,6 +1,6 @@
-// Cooperative handling of Ctrl-C (SIGINT) and SIGTERM.
+// Cooperative handling of Ctrl-C (SIGINT).
 //
-// The first signal only sets a flag; long-running loops poll
+// The first SIGINT only sets a flag; long-running loops poll
 // InterruptRequested() at safe points (the sequencer does so once per trace
 // op) and unwind by throwing tritsim::Error(ExitCode::kInterrupted), so no
 // output file is written and the process exits 130. The handler then restores
@@ -11,16 +11,19 @@
 
 namespace tritsim {
 
-// Installs the handler for SIGINT and SIGTERM. Call once, early in main,
-// before any thread is started. Idempotent.
+// Installs the handler for SIGINT. Call once, early in main, before any
+// thread is started. Idempotent. SIGTERM keeps its default action (the
+// process ends at once; atomic output writes leave no torn file), so a
+// supervisor such as `timeout` or the sweep runner stops a run even when
+// one op takes long.
 void InstallInterruptHandler();
 
-// True once a SIGINT or SIGTERM has arrived since InstallInterruptHandler().
+// True once a SIGINT has arrived since InstallInterruptHandler().
 // Async-signal-safe to set, cheap to read (one relaxed atomic load).
 bool InterruptRequested();
 
-// The name of the signal that set the flag ("SIGINT", "SIGTERM"), or "" if
-// none has arrived. For the one-line message.
+// The name of the signal that set the flag ("SIGINT"), or "" if none has
+// arrived. For the one-line message.
 const char* InterruptSignalName();
 
 // Throws tritsim::Error(ExitCode::kInterrupted) with the one-line message
