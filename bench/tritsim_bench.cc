@@ -142,6 +142,12 @@ Options ParseOptions(int argc, char** argv) {
       UsageError("unknown option " + flag);
   }
   if (o.tritsim.empty()) UsageError("--tritsim is required");
+  for (const std::string& id : o.only) {
+    const std::vector<BenchCase> cases = Cases();
+    const bool known =
+        std::any_of(cases.begin(), cases.end(), [&id](const BenchCase& c) { return c.id == id; });
+    if (!known) UsageError("unknown case '" + id + "' (cases are 1 to 4)");
+  }
   return o;
 }
 
