@@ -19,6 +19,16 @@ export SYSTEMC_DISABLE_COPYRIGHT_MESSAGE=1
 # uncaught exceptions, sanitizer reports, stack traces.
 FORBIDDEN='terminate called|Aborted|core dumped|what\(\)|YAML::|yaml-cpp|boost::|program_options|sc_core::|Error: \(E[0-9]|AddressSanitizer|LeakSanitizer|runtime error:|SUMMARY: |^ *#[0-9]+ 0x|Segmentation fault'
 
+# Under ASan, an exception thrown inside a SystemC thread (a bad trace
+# record, a tile that cannot fit) gives a false report: Debian's SystemC
+# switches coroutine stacks without telling ASan (google/sanitizers#189).
+# The `run` cases are then skipped; the release build runs them all.
+sanitized=0
+if grep -qa __asan_init "$BIN"; then
+  sanitized=1
+  echo "bad_inputs: SKIP 'run' cases: sanitized binary (false ASan reports on throws in SystemC threads)"
+fi
+
 have_sweep=1
 if ! "$BIN" sweep --help >/dev/null 2>&1; then
   have_sweep=0
@@ -88,6 +98,10 @@ check_case() {
 while IFS=$'\t' read -r file want_rc want_text template; do
   [ -z "$file" ] || [[ "$file" == \#* ]] && continue
   if [ "$have_sweep" -eq 0 ] && [[ "$template" == sweep* ]]; then
+    skipped=$((skipped + 1))
+    continue
+  fi
+  if [ "$sanitized" -eq 1 ] && [[ "$template" == run* ]]; then
     skipped=$((skipped + 1))
     continue
   fi
