@@ -22,9 +22,7 @@ extern "C" void OnInterrupt(int signal_number) {
 
 }  // namespace
 
-void InstallInterruptHandler() {
-  std::signal(SIGINT, OnInterrupt);
-}
+void InstallInterruptHandler() { std::signal(SIGINT, OnInterrupt); }
 
 bool InterruptRequested() { return g_signal.load(std::memory_order_relaxed) != 0; }
 
@@ -40,8 +38,8 @@ const char* InterruptSignalName() {
 }
 
 void ThrowInterrupted(const std::string& where) {
-  throw Error(ExitCode::kInterrupted, std::string("interrupted (") + InterruptSignalName() +
-                                          ") " + where + "; no output written");
+  throw Error(ExitCode::kInterrupted, std::string("interrupted (") + InterruptSignalName() + ") " +
+                                          where + "; no output written");
 }
 
 }  // namespace tritsim

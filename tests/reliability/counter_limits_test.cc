@@ -26,10 +26,12 @@ constexpr int64_t kFfnWidth = 1000000, kVocab = 4000000;
 
 std::string LargestModelYaml() {
   return "name: largest-allowed\n"
-         "layers: " + std::to_string(kLayers) + "\nwidth: " + std::to_string(kWidth) +
+         "layers: " +
+         std::to_string(kLayers) + "\nwidth: " + std::to_string(kWidth) +
          "\nheads: " + std::to_string(kHeads) + "\nkv_heads: " + std::to_string(kKvHeads) +
-         "\nhead_dim: " + std::to_string(kHeadDim) + "\nffn:\n  width: " +
-         std::to_string(kFfnWidth) + "\n  kind: gated\nvocab: " + std::to_string(kVocab) +
+         "\nhead_dim: " + std::to_string(kHeadDim) +
+         "\nffn:\n  width: " + std::to_string(kFfnWidth) +
+         "\n  kind: gated\nvocab: " + std::to_string(kVocab) +
          "\ntied_embeddings: false\n"
          "precision:\n  attention: int16\n  ffn: int16\n  embedding: int16\n  head: int16\n"
          "  norm_bits: 16\n  activation_bits: 16\n  kv_bits: 16\n";
@@ -138,9 +140,13 @@ TEST(CounterLimits, OneBeyondEachModelCapIsRejectedAtLoadTime) {
 
 TEST(CounterLimits, OneBeyondEachWorkloadCapIsAUsageError) {
   const ModelConfig model = DefaultModel();
-  const std::vector<WorkloadConfig> beyond = {
-      {(1 << 20) + 1, 1, 0, 1}, {0, (1 << 20) + 1, 0, 1}, {0, 1, (1 << 24) + 1, 1},
-      {0, 1, 0, 4097}, {0, 1, 0, 0}, {-1, 1, 0, 1}, {0, INT64_MIN, 0, 1}};
+  const std::vector<WorkloadConfig> beyond = {{(1 << 20) + 1, 1, 0, 1},
+                                              {0, (1 << 20) + 1, 0, 1},
+                                              {0, 1, (1 << 24) + 1, 1},
+                                              {0, 1, 0, 4097},
+                                              {0, 1, 0, 0},
+                                              {-1, 1, 0, 1},
+                                              {0, INT64_MIN, 0, 1}};
   for (const WorkloadConfig& w : beyond) {
     EXPECT_THROW(
         {
