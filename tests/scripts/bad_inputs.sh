@@ -83,7 +83,13 @@ check_case() {
   [ "$rc" -eq "$want_rc" ] || fail "$label" "exit $rc, expected $want_rc; stderr: $first"
   [ "$lines" -eq 1 ] || fail "$label" "stderr has $lines lines, expected 1: $(head -c 300 "$WORK/stderr")"
   [[ "$first" == "tritsim"* ]] || fail "$label" "stderr does not start with 'tritsim': $first"
-  grep -qF -- "$want_text" "$WORK/stderr" || fail "$label" "stderr lacks '$want_text': $first"
+  # TEXT may list several parts separated by " && "; each must appear.
+  local part rest="$want_text"
+  while [ -n "$rest" ]; do
+    part="${rest%% && *}"
+    [ "$part" = "$rest" ] && rest="" || rest="${rest#* && }"
+    grep -qF -- "$part" "$WORK/stderr" || fail "$label" "stderr lacks '$part': $first"
+  done
   if grep -qE -- "$FORBIDDEN" "$WORK/stderr" "$WORK/stdout"; then
     fail "$label" "raw library text, abort or sanitizer report: $(grep -hE -- "$FORBIDDEN" "$WORK/stderr" "$WORK/stdout" | head -n1)"
   fi
