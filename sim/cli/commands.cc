@@ -98,9 +98,8 @@ int TraceCommand(const Args& args) {
   const ModelConfig model = LoadModel(in);
   ValidateWorkload(in.workload, model);
   auto source = BuildTrace(model, in.workload);
-  std::ostringstream text;
-  WriteTrace(*source, text);
-  WriteFileAtomically(out_path, text.str());
+  // Streamed: a long decode trace never sits in memory whole.
+  StreamFileAtomically(out_path, [&source](std::ostream& out) { WriteTrace(*source, out); });
   std::cerr << "tritsim trace: wrote " << out_path << "\n";
   return 0;
 }

@@ -58,7 +58,7 @@ int sc_main(int argc, char* argv[]) {
     std::cerr << "tritsim: " << e.what() << "\n";
     return int(e.code());
   } catch (const std::exception& e) {
-    std::cerr << "tritsim: internal error: " << e.what() << "\n";
+    std::cerr << "tritsim: internal error: " << tritsim::OneLine(e.what()) << "\n";
     return int(tritsim::ExitCode::kInternal);
   }
 }

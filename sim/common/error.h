@@ -1,6 +1,6 @@
 // Errors that cross module boundaries, and the process exit codes they map to.
 //
-// Every user-facing failure is one of these. The CLI catches them at the
+// Every user-facing failure is one of these; its message is always one line. The CLI catches them at the
 // top, prints what() as a single line on stderr and exits with code().
 // Library exceptions (yaml-cpp, Boost.Program_options, SystemC reports) are
 // translated into these at the boundary where they can occur.
@@ -21,9 +21,19 @@ enum class ExitCode : int {
   kInterrupted = 130  // SIGINT
 };
 
+// Keys and values quoted from a file may hold line breaks; an error message
+// is one line, so they are shown escaped ("\n", "\r").
+inline std::string OneLine(std::string text) {
+  for (size_t i = text.find_first_of("\r\n"); i != std::string::npos;
+       i = text.find_first_of("\r\n", i + 2)) {
+    text.replace(i, 1, text[i] == '\n' ? "\\n" : "\\r");
+  }
+  return text;
+}
+
 class Error : public std::runtime_error {
  public:
-  Error(ExitCode code, const std::string& message) : std::runtime_error(message), code_(code) {}
+  Error(ExitCode code, const std::string& message) : std::runtime_error(OneLine(message)), code_(code) {}
   ExitCode code() const { return code_; }
 
  private:

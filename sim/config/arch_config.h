@@ -25,7 +25,7 @@ enum class TritPacking {
 };
 
 struct ClockConfig {
-  double core_mhz = 1000.0;  // core clock of array, vector unit, SRAM, DMA; (0, 10000]
+  double core_mhz = 1000.0;  // core clock of array, vector unit, SRAM, DMA; [1, 10000]
 };
 
 struct TreeArrayConfig {

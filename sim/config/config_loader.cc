@@ -165,7 +165,8 @@ const Schema& ArchSchema() {
 }
 
 // Ranges from the field comments in config/arch_config.h.
-constexpr RealRule kCoreMhz{0.0, 10000.0, true, false};
+// At least 1 MHz: the period is kept in whole ps and run times in 64-bit ps.
+constexpr RealRule kCoreMhz{1.0, 10000.0, false, false};
 constexpr IntRule kCount64k{1, 65536};
 constexpr IntRule kFanIn{2, 4096, true};
 constexpr IntRule kAccumulatorBits{8, 64};
@@ -186,9 +187,11 @@ constexpr IntRule kQueueDepth{1, 1024};
 // any JEDEC parameter, including tREFI.
 constexpr IntRule kDramCycles{1, 1000000, false, "a positive integer number of DRAM cycles",
                               "DRAM cycles"};
-constexpr RealRule kTckNs{0.0, 100.0, true, false};
+// At least 50 ps, so rounding tCK to whole ps errs by at most 1%.
+constexpr RealRule kTckNs{0.05, 100.0, false, false};
 constexpr RealRule kIdealLatencyNs{0.0, 1e6, true, false};
-constexpr RealRule kIdealBandwidthGbps{0.0, 1e6, true, false};
+// At least 10 MB/s, so the longest allowed run cannot overflow 64-bit ps.
+constexpr RealRule kIdealBandwidthGbps{0.01, 1e6, false, false};
 constexpr RealRule kEnergyPj{0.0, 1e9, false, false};
 constexpr RealRule kDramPjPerBit{0.0, 1000.0, false, false};
 const std::vector<int64_t> kBusWidths = {16, 32, 64, 128};
@@ -260,9 +263,11 @@ void CheckTiming(const Section& s, const DramTiming& t) {
         {"tRC", "tRAS", "tRP"},
         "tRC (" + Cycles(t.tRC) + ") must be at least tRAS + tRP (" + Cycles(t.tRAS + t.tRP) + ")");
   }
-  if (t.tREFI <= t.tRFC) {
-    s.FailAtAny({"tREFI", "tRFC"}, "tREFI (" + Cycles(t.tREFI) + ") must be greater than tRFC (" +
-                                       Cycles(t.tRFC) + ")");
+  // Refresh may take at most half the time (JEDEC parts spend a few percent;
+  // beyond half a channel does little but refresh and runs crawl).
+  if (t.tREFI < 2 * t.tRFC) {
+    s.FailAtAny({"tREFI", "tRFC"}, "tREFI (" + Cycles(t.tREFI) +
+                                       ") must be at least twice tRFC (" + Cycles(t.tRFC) + ")");
   }
   if (t.tCCD_L < t.tCCD_S) {
     s.FailAtAny({"tCCD_L", "tCCD_S"}, "tCCD_L (" + Cycles(t.tCCD_L) +

@@ -2,6 +2,7 @@
 
 #include <charconv>
 #include <cstdint>
+#include <filesystem>
 #include <fstream>
 #include <string>
 #include <string_view>
@@ -250,6 +251,36 @@ void CheckOpConsistency(const TraceOp& op) {
   }
 }
 
+// An op works on the rows of its step: batch x tokens, or one row per
+// sequence (the output head and its norm look at the last position only).
+void CheckRowsMatchStep(const TraceOp& op, const TraceStep& step) {
+  const int64_t all_rows = step.batch * step.tokens;
+  if (op.m == all_rows || op.m == step.batch) return;
+  throw LineError{"op.m", std::to_string(op.m) + " does not match its step (batch " +
+                              std::to_string(step.batch) + " x tokens " +
+                              std::to_string(step.tokens) + " = " + std::to_string(all_rows) +
+                              ", or batch " + std::to_string(step.batch) + ")"};
+}
+
+// The engine counts an op's products and bytes in 64-bit integers; an op
+// whose products would not fit (with headroom for summing a long run) is
+// rejected here rather than wrapping later.
+void CheckCountersFit(const TraceOp& op) {
+  // Per op; ops count 2 per product and 2^64 is 1.8e19. The config loader caps
+  // a whole workload at 1e18 ops, so every trace it allows passes.
+  constexpr long double kMaxProducts = 4e18L;
+  const long double rows = static_cast<long double>(op.m);
+  long double products = rows * static_cast<long double>(op.n) *
+                         static_cast<long double>(std::max<int64_t>(op.k, 1));
+  if (IsAttention(op.kind)) {
+    products = rows * static_cast<long double>(op.heads) * static_cast<long double>(op.head_dim) *
+               static_cast<long double>(op.context);
+  }
+  if (products <= kMaxProducts) return;
+  throw LineError{"op", "m x n x k (or heads x head_dim x context per row) would overflow the "
+                        "engine's 64-bit counters; at most 4e18 products per op"};
+}
+
 // Parses an op line; phase and step come from the enclosing step.
 TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& step) {
   static const std::vector<const char*> kKeys = {
@@ -284,6 +315,8 @@ TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& ste
   op.kv_bits = f.OneOf("kv_bits", kAllowedBits);
   op.zero_fraction = f.Fraction("zero_fraction");
   CheckOpConsistency(op);
+  CheckRowsMatchStep(op, step);
+  CheckCountersFit(op);
   return op;
 }
 
@@ -313,6 +346,10 @@ int ParseMagic(std::string_view line) {
 class TraceFileReader : public TraceSource {
  public:
   explicit TraceFileReader(const std::string& path) : path_(path), in_(path, std::ios::binary) {
+    std::error_code ec;
+    if (std::filesystem::is_directory(path_, ec)) {
+      throw InputError(path_, 0, "", "is a directory, not a trace file");
+    }
     if (!in_) throw InputError(path_, 0, "", "cannot open trace file");
     Guard([this] { ReadHeader(); });
   }
