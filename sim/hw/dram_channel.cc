@@ -46,6 +46,7 @@ DramChannel::DramChannel(const DramConfig& dram) {
                      "bank organisation out of range (1..16 groups, >= 1 bank per group)");
   tck_ps_ = static_cast<uint64_t>(std::llround(dram.timing.tCK_ns * kPsPerNs));
   if (tck_ps_ == 0) throw InputError("architecture", 0, "dram.timing.tCK_ns", "rounds to 0 ps");
+  edge_ = MakeEdgeTest(tck_ps_);
   t_ = ToPs(dram.timing, tck_ps_);
   closed_page_ = dram.page_policy == PagePolicy::kClosed;
   banks_per_group_ = static_cast<uint32_t>(dram.banks_per_group);
@@ -53,6 +54,23 @@ DramChannel::DramChannel(const DramConfig& dram) {
   capacity_ = static_cast<size_t>(std::max<int64_t>(1, dram.queue_depth));
   queue_.assign(capacity_, DramRequest{});
   next_refresh_ps_ = t_.tREFI;
+}
+
+DramChannel::EdgeTest DramChannel::MakeEdgeTest(uint64_t tck_ps) {
+  EdgeTest e;
+  uint64_t odd = tck_ps;
+  while ((odd & 1) == 0) {
+    odd >>= 1;
+    ++e.shift;
+  }
+  // Newton's iteration doubles the correct low bits of the inverse; an odd
+  // number is its own inverse mod 8 (3 bits), so 5 steps give 96 >= 64.
+  constexpr int kNewtonSteps = 5;
+  uint64_t inverse = odd;
+  for (int i = 0; i < kNewtonSteps; ++i) inverse *= 2 - odd * inverse;
+  e.odd_inverse = inverse;
+  e.limit = ~uint64_t{0} / tck_ps;
+  return e;
 }
 
 size_t DramChannel::ChooseFrFcfs(uint64_t now_ps) const {

@@ -109,7 +109,10 @@ class DramChannel {
   // commands (doing any refresh that falls due first). A request counts as
   // first-ready if its row is open in its bank and ACT + tRCD has passed.
   // REQUIRES: !Empty().
-  DramPick Pick();
+  DramPick Pick() { return PickAt(NextPickPs()); }
+  // Pick() for a caller that already holds NextPickPs().
+  // REQUIRES: !Empty(), now_ps == NextPickPs().
+  DramPick PickAt(uint64_t now_ps);
 
   // Does every refresh whose deadline is before end_ps.
   void Finish(uint64_t end_ps);
@@ -157,12 +160,27 @@ class DramChannel {
   }
   const DramRequest& At(size_t age) const { return queue_[Slot(age)]; }
   uint64_t AlignUp(uint64_t ps) const {
-    const uint64_t rem = ps % tck_ps_;
-    return rem == 0 ? ps : ps + (tck_ps_ - rem);
+    if (OnClockEdge(ps)) return ps;  // the common case, without a division
+    return ps + (tck_ps_ - ps % tck_ps_);
   }
+  // ps % tck_ps_ == 0, by multiplication: with tck = odd * 2^k, ps is a
+  // multiple iff rotate_right(ps * odd^-1 mod 2^64, k) <= (2^64 - 1) / tck
+  // (Granlund & Montgomery, PLDI 1994; Warren, Hacker's Delight, 10-17).
+  bool OnClockEdge(uint64_t ps) const {
+    const uint64_t x = ps * edge_.odd_inverse;
+    const uint64_t rotated = (x >> edge_.shift) | (x << ((64 - edge_.shift) & 63));
+    return rotated <= edge_.limit;
+  }
+  struct EdgeTest {
+    uint64_t odd_inverse = 1;  // inverse of tck's odd part, mod 2^64
+    unsigned shift = 0;        // k: tck's trailing zero bits
+    uint64_t limit = ~uint64_t{0};
+  };
+  static EdgeTest MakeEdgeTest(uint64_t tck_ps);
 
   TimingPs t_{};
   uint64_t tck_ps_ = 1;
+  EdgeTest edge_;  // for OnClockEdge
   bool closed_page_ = false;
   uint32_t banks_per_group_ = 1;
 
@@ -249,8 +267,7 @@ inline DramPick DramChannel::PickOldestHit(uint64_t cas_ps) {
   return pick;
 }
 
-inline DramPick DramChannel::Pick() {
-  const uint64_t now_ps = NextPickPs();
+inline DramPick DramChannel::PickAt(uint64_t now_ps) {
   const DramRequest& oldest = queue_[head_];
   if (now_ps < next_refresh_ps_ && IsReadyHit(oldest, now_ps)) {
     // A ready hit's CAS waits only for channel-wide constraints (ACT + tRCD has passed).

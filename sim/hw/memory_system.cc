@@ -9,7 +9,9 @@
 //    engine issues in order, so a full queue holds back the requests behind);
 //  - a channel's scheduler picks one queued request (DramChannel::Pick).
 // Channels are otherwise independent. The loop is exact under the channel's
-// rules and allocates nothing per request.
+// rules and allocates nothing per request. The earliest pick over the
+// channels comes from a winner tree, so one channel's change costs
+// log2(channels) steps, not a scan of every channel.
 #include "hw/memory_system.h"
 
 #include <algorithm>
@@ -52,33 +54,56 @@ class DramMemory final : public MemorySystem {
  private:
   // Per-Transfer progress of the event loop.
   struct Progress {
-    uint64_t first_burst_address = 0;
-    uint64_t count = 0;    // requests in this transfer
-    uint64_t arrived = 0;  // requests already queued
-    uint64_t picked = 0;   // requests already scheduled
-    uint64_t now_ps = 0;   // time of the last event
-    uint64_t start_ps = 0;
-    uint64_t done_ps = 0;  // latest completion so far
-    size_t slot = 0;       // window slot of the next arrival
+    uint64_t count = 0;         // requests in this transfer
+    uint64_t arrived = 0;       // requests already queued
+    uint64_t picked = 0;        // requests already scheduled
+    uint64_t now_ps = 0;        // time of the last event
+    uint64_t done_ps = 0;       // latest completion so far
+    uint64_t next_address = 0;  // first byte of the next request to arrive
+    DramAddress next;           // its decoded coordinates
+    size_t slot = 0;            // window slot of the next arrival
+    size_t window = 1;          // window slots in use (min(max_outstanding, count))
     bool is_write = false;
   };
 
-  uint64_t NextAddress(const Progress& p) const {
-    return p.first_burst_address + p.arrived * map_.burst_bytes();
-  }
-  uint32_t ChannelOf(const Progress& p) const {
-    return channels_.size() == 1 ? 0 : map_.ChannelOf(NextAddress(p));
-  }
-  uint64_t ArrivalPs(const Progress& p, uint32_t channel) const;
-  size_t EarliestPick(uint64_t& when_ps) const;
-  void RescanEarliestPick();
-  // Refreshes pick_ps_[channel] after a change to that channel's queue.
+  // The event loop of Transfer; kOneChannel drops the channel indexing and
+  // the winner tree when there is a single channel.
+  template <bool kOneChannel>
+  void RunEvents(Progress& p);
+  template <bool kOneChannel>
+  uint64_t ArrivalPs(const Progress& p) const;
+  // The channel whose scheduler picks next (ties: lowest channel) and when.
+  size_t EarliestChannel() const { return tree_channel_[1]; }
+  uint64_t EarliestPs() const { return tree_ps_[1]; }
+  // Refreshes the channel's leaf after a change to its queue, then replays
+  // the matches on the path to the root, carrying the winner up.
+  template <bool kOneChannel>
   void UpdatePick(size_t channel) {
-    pick_ps_[channel] = channels_[channel].NextPickPs();
-    if (pick_ps_.size() > 1) UpdateEarliestPick(channel);
+    if (kOneChannel) {
+      tree_ps_[1] = channels_.front().NextPickPs();
+      return;
+    }
+    size_t node = leaves_ + channel;
+    uint64_t ps = channels_[channel].NextPickPs();
+    uint32_t who = static_cast<uint32_t>(channel);
+    tree_ps_[node] = ps;
+    for (; node > 1; node /= 2) {
+      const size_t sibling = node ^ 1;
+      const uint64_t other_ps = tree_ps_[sibling];
+      // The left child (even index) covers the lower channels: it wins ties.
+      const bool sibling_is_left = (node & 1) != 0;
+      const bool other_wins = (other_ps < ps) | (sibling_is_left & (other_ps == ps));
+      if (other_wins) {
+        ps = other_ps;
+        who = tree_channel_[sibling];
+      }
+      tree_ps_[node / 2] = ps;
+      tree_channel_[node / 2] = who;
+    }
   }
-  void UpdateEarliestPick(size_t channel);
-  void Arrive(Progress& p, uint32_t channel, uint64_t when_ps);
+  template <bool kOneChannel>
+  void Arrive(Progress& p, uint64_t when_ps);
+  template <bool kOneChannel>
   void PickOn(Progress& p, size_t channel, uint64_t when_ps);
 
   DramAddressMap map_;
@@ -88,18 +113,33 @@ class DramMemory final : public MemorySystem {
   // Completion of the request that last used each window slot (kUnknown
   // while it is still queued); slot i % max_outstanding.
   std::vector<uint64_t> window_ps_;
-  // channels_[c].NextPickPs(), kept up to date after every change to c.
-  std::vector<uint64_t> pick_ps_;
-  uint64_t min_pick_ps_ = DramChannel::kNever;  // min of pick_ps_ (2+ channels only)
-  size_t min_channel_ = 0;                      // lowest channel holding it
+  // Winner tree of the channels' next picks, as two parallel arrays: leaf
+  // leaves_ + c holds channels_[c].NextPickPs(), kept up to date after every
+  // change to c (leaves past the last channel hold kNever); internal node n
+  // in [1, leaves_) holds the earliest pick among the leaves below it and
+  // its channel, the lowest on ties; its children are 2n and 2n + 1. With
+  // one channel the root is the leaf itself (index 1).
+  size_t leaves_ = 1;  // channels rounded up to a power of two
+  std::vector<uint64_t> tree_ps_;
+  std::vector<uint32_t> tree_channel_;
   mutable DramStats total_;
 };
+
+size_t RoundUpToPowerOfTwo(size_t n) {
+  size_t p = 1;
+  while (p < n) p *= 2;
+  return p;
+}
 
 DramMemory::DramMemory(const DramConfig& dram)
     : map_(dram), banks_per_group_(static_cast<uint32_t>(dram.banks_per_group)) {
   channels_.reserve(static_cast<size_t>(dram.channels));
   for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram);
-  pick_ps_.assign(channels_.size(), DramChannel::kNever);
+  leaves_ = RoundUpToPowerOfTwo(channels_.size());
+  tree_ps_.assign(2 * leaves_, DramChannel::kNever);
+  tree_channel_.assign(2 * leaves_, 0);
+  for (size_t c = 0; c < leaves_; ++c) tree_channel_[leaves_ + c] = static_cast<uint32_t>(c);
+  for (size_t node = leaves_; node-- > 1;) tree_channel_[node] = tree_channel_[2 * node];
   const uint64_t burst_ps = channels_.front().tck_ps() *
                             static_cast<uint64_t>(dram.timing.burst_length) / kDdrTransfersPerCycle;
   peak_bytes_per_second_ = static_cast<double>(dram.channels) *
@@ -109,66 +149,42 @@ DramMemory::DramMemory(const DramConfig& dram)
 
 // Earliest time the pending request may enter its queue, or kUnknown while
 // it waits for a queue slot or for a still-queued request's completion.
-uint64_t DramMemory::ArrivalPs(const Progress& p, uint32_t channel) const {
-  if (!channels_[channel].HasRoom()) return kUnknown;
+template <bool kOneChannel>
+uint64_t DramMemory::ArrivalPs(const Progress& p) const {
+  if (!channels_[kOneChannel ? 0 : p.next.channel].HasRoom()) return kUnknown;
   const uint64_t gate_ps = window_ps_[p.slot];
   if (gate_ps == kUnknown) return kUnknown;
   return std::max(p.now_ps, gate_ps);
 }
 
-// The channel whose scheduler picks next and when (ties: lowest channel).
-size_t DramMemory::EarliestPick(uint64_t& when_ps) const {
-  if (pick_ps_.size() == 1) {
-    when_ps = pick_ps_[0];
-    return 0;
-  }
-  when_ps = min_pick_ps_;
-  return min_channel_;
-}
-
-void DramMemory::RescanEarliestPick() {
-  min_channel_ = 0;
-  min_pick_ps_ = pick_ps_[0];
-  for (size_t c = 1; c < pick_ps_.size(); ++c) {
-    if (pick_ps_[c] < min_pick_ps_) {
-      min_pick_ps_ = pick_ps_[c];
-      min_channel_ = c;
-    }
-  }
-}
-
-// Keeps (min_pick_ps_, min_channel_) the lowest-numbered channel with the
-// earliest pick, rescanning only when the current earliest one moved later.
-void DramMemory::UpdateEarliestPick(size_t channel) {
-  const uint64_t t = pick_ps_[channel];
-  if (t < min_pick_ps_ || (t == min_pick_ps_ && channel < min_channel_)) {
-    min_pick_ps_ = t;
-    min_channel_ = channel;
-  } else if (channel == min_channel_ && t != min_pick_ps_) {
-    RescanEarliestPick();
-  }
-}
-
-// Decodes the next request straight into its channel's queue.
-void DramMemory::Arrive(Progress& p, uint32_t channel, uint64_t when_ps) {
-  const DramAddress where = map_.Decode(NextAddress(p));
-  DramRequest& r = channels_[channel].Push();
-  r.row = where.row;
+// Decodes the next request straight into its channel's queue. A push onto
+// a non-empty queue leaves the channel's next pick time unchanged (it
+// depends only on the oldest entry and the last pick).
+template <bool kOneChannel>
+void DramMemory::Arrive(Progress& p, uint64_t when_ps) {
+  const uint32_t channel = kOneChannel ? 0 : p.next.channel;
+  DramChannel& queue = channels_[channel];
+  const bool was_empty = queue.Empty();
+  DramRequest& r = queue.Push();
+  r.row = p.next.row;
   r.arrival_ps = when_ps;
-  r.bank = where.bank_group * banks_per_group_ + where.bank;
-  r.bank_group = where.bank_group;
+  r.bank = p.next.bank_group * banks_per_group_ + p.next.bank;
+  r.bank_group = p.next.bank_group;
   r.tag = static_cast<uint32_t>(p.slot);
   r.is_write = p.is_write;
-  UpdatePick(channel);
+  if (was_empty) UpdatePick<kOneChannel>(channel);
   window_ps_[p.slot] = kUnknown;
   p.now_ps = when_ps;
-  p.slot = p.slot + 1 == window_ps_.size() ? 0 : p.slot + 1;
+  p.slot = p.slot + 1 == p.window ? 0 : p.slot + 1;
   ++p.arrived;
+  p.next_address += map_.burst_bytes();
+  p.next = map_.Decode(p.next_address);
 }
 
+template <bool kOneChannel>
 void DramMemory::PickOn(Progress& p, size_t channel, uint64_t when_ps) {
-  const DramPick pick = channels_[channel].Pick();
-  UpdatePick(channel);
+  const DramPick pick = channels_[channel].PickAt(when_ps);
+  UpdatePick<kOneChannel>(channel);
   window_ps_[pick.tag] = pick.times.done_ps;
   p.done_ps = std::max(p.done_ps, pick.times.done_ps);
   p.now_ps = when_ps;
@@ -180,25 +196,33 @@ uint64_t DramMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, u
   if (bytes == 0) return start_ps;
   const uint64_t burst = map_.burst_bytes();
   Progress p;
-  p.first_burst_address = address / burst * burst;
+  p.next_address = address / burst * burst;
+  p.next = map_.Decode(p.next_address);
   p.count = (address + bytes + burst - 1) / burst - address / burst;
-  p.now_ps = p.start_ps = p.done_ps = start_ps;
+  p.now_ps = p.done_ps = start_ps;
   p.is_write = is_write;
   const uint64_t window = static_cast<uint64_t>(std::max<int64_t>(1, max_outstanding));
-  window_ps_.assign(static_cast<size_t>(std::min(window, p.count)), start_ps);
-  uint32_t next_channel = ChannelOf(p);
-  while (p.picked < p.count) {
-    const uint64_t arrive_ps = p.arrived < p.count ? ArrivalPs(p, next_channel) : kUnknown;
-    uint64_t pick_ps = kUnknown;
-    const size_t channel = EarliestPick(pick_ps);
-    if (arrive_ps != kUnknown && arrive_ps <= pick_ps) {
-      Arrive(p, next_channel, arrive_ps);
-      next_channel = ChannelOf(p);
-    } else {
-      PickOn(p, channel, pick_ps);
-    }
+  p.window = static_cast<size_t>(std::min(window, p.count));
+  window_ps_.assign(p.window, start_ps);
+  if (channels_.size() == 1) {
+    RunEvents<true>(p);
+  } else {
+    RunEvents<false>(p);
   }
   return p.done_ps;
+}
+
+template <bool kOneChannel>
+void DramMemory::RunEvents(Progress& p) {
+  while (p.picked < p.count) {
+    const uint64_t arrive_ps = p.arrived < p.count ? ArrivalPs<kOneChannel>(p) : kUnknown;
+    const uint64_t pick_ps = EarliestPs();
+    if (arrive_ps != kUnknown && arrive_ps <= pick_ps) {
+      Arrive<kOneChannel>(p, arrive_ps);
+    } else {
+      PickOn<kOneChannel>(p, kOneChannel ? 0 : EarliestChannel(), pick_ps);
+    }
+  }
 }
 
 void DramMemory::Finish(uint64_t end_ps) {
