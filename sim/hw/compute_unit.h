@@ -8,6 +8,8 @@
 #include <systemc>
 
 #include "engine/work_item.h"
+#include "hw/scratchpad.h"
+#include "report/vcd_writer.h"
 
 namespace tritsim {
 
@@ -17,6 +19,32 @@ class ComputeUnitIf : public virtual sc_core::sc_interface {
   // operands in the scratchpad. Returns the cycles lost to scratchpad bank
   // conflicts (already included in the time waited).
   virtual uint64_t Execute(const WorkItem& item) = 0;
+};
+
+// The timing every compute unit shares: an item's cycles (from the tiler)
+// plus the scratchpad conflicts its reads meet, waited out in the caller's
+// thread, with busy cycles counted and, for --vcd, the busy interval logged.
+class TimedComputeUnit : public sc_core::sc_module, public ComputeUnitIf {
+ public:
+  TimedComputeUnit(sc_core::sc_module_name name, uint64_t period_ps, Scratchpad& sram);
+
+  uint64_t busy_cycles() const { return busy_cycles_; }
+  // Optional: busy intervals go to `log` as `signal` (for --vcd).
+  void TraceActivity(ActivityLog* log, int signal) {
+    log_ = log;
+    signal_ = signal;
+  }
+
+ protected:
+  // Waits out `item` (compute cycles + conflicts); returns the conflicts.
+  uint64_t RunTimed(const WorkItem& item);
+
+ private:
+  uint64_t period_ps_;
+  Scratchpad& sram_;
+  uint64_t busy_cycles_ = 0;
+  ActivityLog* log_ = nullptr;
+  int signal_ = 0;
 };
 
 }  // namespace tritsim

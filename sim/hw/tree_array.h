@@ -8,17 +8,13 @@
 // out, adds scratchpad conflicts, and counts its energy events.
 #pragma once
 
-#include <systemc>
-
 #include "config/arch_config.h"
 #include "engine/run_result.h"
 #include "hw/compute_unit.h"
-#include "hw/scratchpad.h"
-#include "report/vcd_writer.h"
 
 namespace tritsim {
 
-class TreeArray : public sc_core::sc_module, public ComputeUnitIf {
+class TreeArray : public TimedComputeUnit {
  public:
   TreeArray(sc_core::sc_module_name name, const TreeArrayConfig& config, uint64_t period_ps,
             Scratchpad& sram);
@@ -27,21 +23,10 @@ class TreeArray : public sc_core::sc_module, public ComputeUnitIf {
 
   // Adds this unit's counts into `events`.
   void AddEvents(EventCounts& events) const;
-  uint64_t busy_cycles() const { return busy_cycles_; }
-  // Optional: busy intervals go to `log` as `signal` (for --vcd).
-  void TraceActivity(ActivityLog* log, int signal) {
-    log_ = log;
-    signal_ = signal;
-  }
 
  private:
   TreeArrayConfig config_;
-  uint64_t period_ps_;
-  Scratchpad& sram_;
-  uint64_t busy_cycles_ = 0;
   EventCounts counts_;
-  ActivityLog* log_ = nullptr;
-  int signal_ = 0;
 };
 
 }  // namespace tritsim

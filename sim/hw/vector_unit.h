@@ -7,17 +7,13 @@
 // counts its energy events.
 #pragma once
 
-#include <systemc>
-
 #include "config/arch_config.h"
 #include "engine/run_result.h"
 #include "hw/compute_unit.h"
-#include "hw/scratchpad.h"
-#include "report/vcd_writer.h"
 
 namespace tritsim {
 
-class VectorUnit : public sc_core::sc_module, public ComputeUnitIf {
+class VectorUnit : public TimedComputeUnit {
  public:
   VectorUnit(sc_core::sc_module_name name, const VectorUnitConfig& config, uint64_t period_ps,
              Scratchpad& sram);
@@ -25,21 +21,10 @@ class VectorUnit : public sc_core::sc_module, public ComputeUnitIf {
   uint64_t Execute(const WorkItem& item) override;
 
   void AddEvents(EventCounts& events) const;
-  uint64_t busy_cycles() const { return busy_cycles_; }
-  // Optional: busy intervals go to `log` as `signal` (for --vcd).
-  void TraceActivity(ActivityLog* log, int signal) {
-    log_ = log;
-    signal_ = signal;
-  }
 
  private:
   VectorUnitConfig config_;
-  uint64_t period_ps_;
-  Scratchpad& sram_;
-  uint64_t busy_cycles_ = 0;
   EventCounts counts_;
-  ActivityLog* log_ = nullptr;
-  int signal_ = 0;
 };
 
 }  // namespace tritsim

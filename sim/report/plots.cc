@@ -16,7 +16,7 @@
 #include <sstream>
 #include <system_error>
 
-#include "common/atomic_file.h"
+#include "report/gnuplot.h"
 #include "common/error.h"
 #include "trace/trace_format.h"
 
@@ -29,7 +29,6 @@ constexpr double kHzPerMhz = 1e6;
 constexpr double kRangeDecade = 10.0;   // roofline x margin beyond the points, factor
 constexpr double kRangeMarginY = 3.0;   // roofline y margin, factor
 constexpr double kBarHeadroom = 1.15;   // bar charts: top of the y range over the tallest bar
-constexpr size_t kMaxErrorChars = 300;  // gnuplot stderr quoted in an error message
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
 
@@ -53,113 +52,6 @@ std::string Num(double x) {
 
 std::string PlotError(const std::string& dir, const std::string& what) {
   return "--plots " + dir + ": " + what;
-}
-
-// ---------------------------------------------------------------------------
-// Running gnuplot.
-
-// Reads everything from `fd` until EOF.
-std::string ReadAll(int fd) {
-  std::string out;
-  char buf[4096];
-  ssize_t n;
-  while ((n = ::read(fd, buf, sizeof buf)) > 0) out.append(buf, static_cast<size_t>(n));
-  return out;
-}
-
-// One line: newlines joined with "; ", cut to kMaxErrorChars.
-std::string OneLine(std::string text) {
-  while (!text.empty() && (text.back() == '\n' || text.back() == ' ')) text.pop_back();
-  std::string out;
-  for (char c : text) {
-    if (c == '\n') {
-      out += "; ";
-    } else if (c != '\r') {
-      out += c;
-    }
-  }
-  if (out.size() > kMaxErrorChars) out = out.substr(0, kMaxErrorChars) + "...";
-  return out.empty() ? "no message" : out;
-}
-
-// Child side: working directory `dir`, stderr to `err_fd`, stdin and stdout
-// to /dev/null, then exec gnuplot. Only async-signal-safe calls.
-[[noreturn]] void ExecGnuplot(const char* dir, const char* outfile_arg, const char* script,
-                              int err_fd) {
-  int null_fd = ::open("/dev/null", O_RDWR);
-  if (null_fd >= 0) {
-    ::dup2(null_fd, STDIN_FILENO);
-    ::dup2(null_fd, STDOUT_FILENO);
-  }
-  ::dup2(err_fd, STDERR_FILENO);
-  if (::chdir(dir) != 0) {
-    static const char kMsg[] = "cannot enter the plot directory\n";
-    (void)!::write(STDERR_FILENO, kMsg, sizeof kMsg - 1);
-    ::_exit(127);
-  }
-  ::execlp("gnuplot", "gnuplot", "-e", outfile_arg, script, static_cast<char*>(nullptr));
-  static const char kMsg[] = "gnuplot not found on PATH (Debian package gnuplot-nox)\n";
-  (void)!::write(STDERR_FILENO, kMsg, sizeof kMsg - 1);
-  ::_exit(127);
-}
-
-// Runs `gnuplot -e 'outfile="OUT"' SCRIPT` in `dir`. Returns "" on success,
-// else what went wrong (one line).
-std::string RunGnuplot(const std::string& dir, const std::string& script, const std::string& out) {
-  const std::string outfile_arg = "outfile=\"" + out + "\"";
-  int pipe_fds[2];
-  if (::pipe(pipe_fds) != 0) return "cannot create a pipe";
-  pid_t pid = ::fork();
-  if (pid < 0) {
-    ::close(pipe_fds[0]);
-    ::close(pipe_fds[1]);
-    return "cannot fork";
-  }
-  if (pid == 0) {
-    ::close(pipe_fds[0]);
-    ExecGnuplot(dir.c_str(), outfile_arg.c_str(), script.c_str(), pipe_fds[1]);
-  }
-  ::close(pipe_fds[1]);
-  std::string err = ReadAll(pipe_fds[0]);
-  ::close(pipe_fds[0]);
-  int status = 0;
-  while (::waitpid(pid, &status, 0) < 0 && errno == EINTR) {
-  }
-  if (WIFEXITED(status) && WEXITSTATUS(status) == 0) return "";
-  return OneLine(err);
-}
-
-// WriteFileAtomically, its error prefixed with "--plots DIR: ".
-void WriteInPlotDir(const std::string& dir, const std::string& path, const std::string& content) {
-  try {
-    WriteFileAtomically(path, content);
-  } catch (const Error& e) {
-    throw Error(e.code(), PlotError(dir, e.what()));
-  }
-}
-
-// Writes NAME.dat and NAME.gp, renders NAME.svg.tmp and renames it to
-// NAME.svg. On failure removes the temporary svg and throws.
-void RenderPlot(const std::string& dir, const std::string& name, const std::string& data,
-                const std::string& script) {
-  const fs::path base = fs::path(dir) / name;
-  WriteInPlotDir(dir, base.string() + ".dat", data);
-  WriteInPlotDir(dir, base.string() + ".gp", script);
-  const std::string svg_tmp = name + ".svg.tmp";
-  const fs::path tmp_path = fs::path(dir) / svg_tmp;
-  std::string failure = RunGnuplot(dir, name + ".gp", svg_tmp);
-  std::error_code ec;
-  if (failure.empty() && (!fs::exists(tmp_path, ec) || fs::file_size(tmp_path, ec) == 0)) {
-    failure = name + ".svg: gnuplot wrote no output";
-  }
-  if (failure.empty()) {
-    fs::rename(tmp_path, base.string() + ".svg", ec);
-    if (ec) failure = name + ".svg: cannot rename into place: " + ec.message();
-  }
-  if (!failure.empty()) {
-    fs::remove(tmp_path, ec);
-    throw Error(ExitCode::kBadInput, PlotError(dir, "gnuplot failed: " + failure));
-  }
 }
 
 // The first lines of every script: the output file (overridable with
@@ -475,9 +367,9 @@ void WriteRunPlots(const std::string& dir, const RunResult& run, const EnergyBre
   CheckRoofs(dir, run);
   MakeDirectory(dir);
   const std::vector<OpClassPoint> classes = GroupOpClasses(run);
-  RenderPlot(dir, "roofline", RooflineData(run, classes), RooflineScript(run, classes));
-  RenderPlot(dir, "stalls", StallsData(run), StallsScript(run));
-  RenderPlot(dir, "energy", EnergyData(run, energy), EnergyScript(run, energy));
+  RenderGnuplot(dir, "roofline", RooflineData(run, classes), RooflineScript(run, classes));
+  RenderGnuplot(dir, "stalls", StallsData(run), StallsScript(run));
+  RenderGnuplot(dir, "energy", EnergyData(run, energy), EnergyScript(run, energy));
 }
 
 }  // namespace tritsim

@@ -15,7 +15,7 @@
 #include <map>
 #include <sstream>
 
-#include "common/atomic_file.h"
+#include "report/gnuplot.h"
 #include "common/error.h"
 
 namespace tritsim {
@@ -23,7 +23,6 @@ namespace {
 
 namespace fs = std::filesystem;
 
-constexpr size_t kMaxErrorChars = 300;  // gnuplot stderr quoted in an error
 constexpr double kLogAxisSpan = 10.0;   // an axis spanning this factor or more is drawn log-scale
 constexpr int kWidthPx = 800;
 constexpr int kHeightPx = 560;
@@ -50,72 +49,6 @@ std::string Quote(const std::string& s) { return "\"" + Sanitize(s) + "\""; }
 
 Error PlotError(const std::string& dir, const std::string& what) {
   return Error(ExitCode::kBadInput, "--plots " + dir + ": " + what);
-}
-
-// Child side: cwd `dir`, stderr to `err_fd`, exec gnuplot.
-[[noreturn]] void ExecGnuplot(const char* dir, const char* outfile_arg, const char* script,
-                              int err_fd) {
-  const int null_fd = ::open("/dev/null", O_RDWR);
-  if (null_fd >= 0) {
-    ::dup2(null_fd, STDIN_FILENO);
-    ::dup2(null_fd, STDOUT_FILENO);
-  }
-  ::dup2(err_fd, STDERR_FILENO);
-  if (::chdir(dir) == 0) {
-    ::execlp("gnuplot", "gnuplot", "-e", outfile_arg, script, static_cast<char*>(nullptr));
-  }
-  static const char kMsg[] = "gnuplot not found on PATH (Debian package gnuplot-nox)\n";
-  (void)!::write(STDERR_FILENO, kMsg, sizeof kMsg - 1);
-  ::_exit(127);
-}
-
-// Runs gnuplot on `script` in `dir` writing `out`; "" on success, else
-// gnuplot's stderr on one line.
-std::string RunGnuplot(const std::string& dir, const std::string& script, const std::string& out) {
-  const std::string outfile_arg = "outfile=\"" + out + "\"";
-  int fds[2];
-  if (::pipe(fds) != 0) return "cannot create a pipe";
-  const pid_t pid = ::fork();
-  if (pid < 0) return "cannot fork";
-  if (pid == 0) {
-    ::close(fds[0]);
-    ExecGnuplot(dir.c_str(), outfile_arg.c_str(), script.c_str(), fds[1]);
-  }
-  ::close(fds[1]);
-  std::string err;
-  char buf[4096];
-  ssize_t n;
-  while ((n = ::read(fds[0], buf, sizeof buf)) > 0) err.append(buf, size_t(n));
-  ::close(fds[0]);
-  int status = 0;
-  while (::waitpid(pid, &status, 0) < 0 && errno == EINTR) {
-  }
-  if (WIFEXITED(status) && WEXITSTATUS(status) == 0) return "";
-  std::replace(err.begin(), err.end(), '\n', ' ');
-  if (err.size() > kMaxErrorChars) err = err.substr(0, kMaxErrorChars) + "...";
-  return err.empty() ? "no message" : err;
-}
-
-// NAME.dat and NAME.gp atomically, then NAME.svg via a temporary name.
-void Render(const std::string& dir, const std::string& name, const std::string& data,
-            const std::string& script) {
-  std::error_code ec;
-  fs::create_directories(dir, ec);
-  if (ec) throw PlotError(dir, "cannot create the directory: " + ec.message());
-  const fs::path base = fs::path(dir) / name;
-  WriteFileAtomically(base.string() + ".dat", data);
-  WriteFileAtomically(base.string() + ".gp", script);
-  const fs::path tmp = fs::path(dir) / (name + ".svg.tmp");
-  std::string failure = RunGnuplot(dir, name + ".gp", tmp.filename().string());
-  if (failure.empty() && (!fs::exists(tmp, ec) || fs::file_size(tmp, ec) == 0)) {
-    failure = "gnuplot wrote no output";
-  }
-  if (failure.empty()) fs::rename(tmp, base.string() + ".svg", ec);
-  if (failure.empty() && ec) failure = "cannot rename " + name + ".svg into place";
-  if (!failure.empty()) {
-    fs::remove(tmp, ec);
-    throw PlotError(dir, name + ".svg: " + failure);
-  }
 }
 
 std::string ScriptHeader(const std::string& name, const std::string& what) {
@@ -187,7 +120,7 @@ void WriteFrontPlot(const std::string& dir, const CsvTable& table,
         "linecolor rgb \"#9a9a9a\" title \"design points\", \\\n"
      << "     \"front.dat\" index 1 using 1:2 with linespoints pointtype 5 linewidth 2 "
         "linecolor rgb \"#b03a2e\" title \"non-dominated\"\n";
-  Render(dir, "front", data.str(), gp.str());
+  RenderGnuplot(dir, "front", data.str(), gp.str());
 }
 
 namespace {
@@ -281,7 +214,7 @@ std::string WriteAxisPlot(const std::string& dir, const CsvTable& table,
      << (place.categorical ? "set xrange [-0.5:" + std::to_string(place.order.size()) + "-0.5]\n"
                            : "")
      << plot.str() << "\n";
-  Render(dir, name, data.str(), gp.str());
+  RenderGnuplot(dir, name, data.str(), gp.str());
   return name;
 }
 
