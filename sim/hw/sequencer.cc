@@ -60,7 +60,9 @@ void Sequencer::IssueThread() {
   try {
     TraceRecord record;
     TraceStep step;
-    while (trace_.next(record)) {
+    for (;;) {
+      issue_state_ = "the next trace record";
+      if (!trace_.next(record)) break;
       if (record.is_step) {
         step = record.step;
         const uint64_t tokens = uint64_t(step.tokens) * uint64_t(step.batch);

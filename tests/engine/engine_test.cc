@@ -5,6 +5,8 @@
 #include <cmath>
 #include <random>
 
+#include <systemc>
+
 #include "common/error.h"
 #include "config/config_loader.h"
 #include "config/dram_presets.h"
@@ -205,6 +207,43 @@ TEST_P(EngineBatchSweep, ProjectionsFollowTheRoofline) {
 }
 
 INSTANTIATE_TEST_SUITE_P(Batches, EngineBatchSweep, ::testing::Values(1, 4, 16, 64, 256, 512));
+
+// A trace source that stalls forever on its second record: the issue
+// thread blocks on an event nobody notifies, so the simulation runs out of
+// events with work left. The watchdog must turn that into exit 4 naming
+// what each thread waits for, not a hang or half a result.
+class StallingTrace : public TraceSource {
+ public:
+  const TraceHeader& header() const override { return header_; }
+  bool next(TraceRecord& record) override {
+    if (calls_++ == 0) {
+      record = TraceRecord();
+      record.is_step = true;
+      return true;
+    }
+    sc_core::wait(never_);
+    return false;
+  }
+
+ private:
+  TraceHeader header_;
+  int calls_ = 0;
+  sc_core::sc_event never_;
+};
+
+TEST(EngineErrors, WatchdogNamesTheStuckUnitInsteadOfHanging) {
+  StallingTrace trace;
+  try {
+    RunSimulation(DefaultArch(), trace, SimOptions{});
+    FAIL() << "expected the watchdog to fire";
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ExitCode::kSimFailed);
+    const std::string what = e.what();
+    EXPECT_NE(what.find("watchdog"), std::string::npos) << what;
+    EXPECT_NE(what.find("issue thread: the next trace record"), std::string::npos) << what;
+    EXPECT_NE(what.find("compute thread: the next tile"), std::string::npos) << what;
+  }
+}
 
 TEST(EngineErrors, TileThatCannotFitIsASimulationErrorNamingTheOp) {
   const ArchConfig arch =
