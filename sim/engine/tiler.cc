@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "common/error.h"
+#include "config/dram_presets.h"
 #include "model/model_stats.h"
 
 namespace tritsim {
@@ -84,17 +85,7 @@ HardwareRates ComputeRates(const ArchConfig& arch) {
   r.pipeline_depth = Log2Ceil(uint64_t(arch.array.fan_in)) + uint64_t(arch.array.register_cut);
   r.array_ops_per_cycle = 2.0 * double(arch.array.trees) * double(arch.array.fan_in);
   r.vector_ops_per_cycle = 2.0 * double(arch.vector.lanes);
-  double peak_bytes_per_second = 0;
-  if (arch.dram.is_ideal()) {
-    peak_bytes_per_second = arch.dram.ideal_bandwidth_gbps * 1e9;
-  } else {
-    const double burst_bytes =
-        double(arch.dram.bus_width_bits) / 8.0 * double(arch.dram.timing.burst_length);
-    const double burst_s =
-        double(arch.dram.timing.burst_length) / 2.0 * arch.dram.timing.tCK_ns * 1e-9;
-    peak_bytes_per_second = double(arch.dram.channels) * burst_bytes / burst_s;
-  }
-  r.dram_bytes_per_cycle = peak_bytes_per_second * double(r.core_period_ps) * 1e-12;
+  r.dram_bytes_per_cycle = DramPeakBytesPerSecond(arch.dram) * double(r.core_period_ps) * 1e-12;
   return r;
 }
 
