@@ -245,8 +245,9 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
           item.load_address = weight_base + BitsToBytes(n0 * k + k0 * nn, weight_bits);
         }
         const uint64_t passes = CeilDiv(nn, trees) * CeilDiv(kk, fan);
-        item.weight_uses = mt * kk * nn;
+        const uint64_t uses = mt * kk * nn;  // activation x weight products
         if (on_array) {
+          item.weight_uses = uses;
           // One pass streams the mt rows through trees holding F x T weights;
           // the next pass's weights are fetched (and decoded) meanwhile.
           uint64_t pass_cycles = std::max<uint64_t>(mt, CeilDiv(pass_bytes, sram_bytes_per_cycle));
@@ -262,8 +263,9 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
                   : 0;
           item.accumulator_adds = mt * nn * CeilDiv(kk, fan);
         } else {
-          item.compute_cycles = CeilDiv(item.weight_uses, uint64_t(arch_.vector.lanes));
-          item.vector_macs = item.weight_uses;
+          // The vector unit's products are MACs, not array weight uses.
+          item.compute_cycles = CeilDiv(uses, uint64_t(arch_.vector.lanes));
+          item.vector_macs = uses;
         }
         item.sram_read_accesses = CeilDiv(tile_bytes, bank_width) +
                                   CeilDiv(mt * kk * act_bytes, bank_width) * CeilDiv(nn, trees);
