@@ -247,25 +247,25 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
         const uint64_t passes = CeilDiv(nn, trees) * CeilDiv(kk, fan);
         const uint64_t uses = mt * kk * nn;  // activation x weight products
         if (on_array) {
-          item.weight_uses = uses;
+          item.events.weight_uses = uses;
           // One pass streams the mt rows through trees holding F x T weights;
           // the next pass's weights are fetched (and decoded) meanwhile.
           uint64_t pass_cycles = std::max<uint64_t>(mt, CeilDiv(pass_bytes, sram_bytes_per_cycle));
           if (decoded) {
             pass_cycles = std::max<uint64_t>(
                 pass_cycles, CeilDiv(pass_bytes, uint64_t(arch_.packing.decoder_bytes_per_cycle)));
-            item.decoder_bytes = tile_bytes;
+            item.events.decoder_bytes = tile_bytes;
           }
           item.compute_cycles = passes * pass_cycles;
-          item.weight_uses_zero =
+          item.events.weight_uses_zero =
               op.weights == WeightFormat::kTernary
-                  ? uint64_t(std::llround(double(item.weight_uses) * op.zero_fraction))
+                  ? uint64_t(std::llround(double(item.events.weight_uses) * op.zero_fraction))
                   : 0;
-          item.accumulator_adds = mt * nn * CeilDiv(kk, fan);
+          item.events.accumulator_adds = mt * nn * CeilDiv(kk, fan);
         } else {
           // The vector unit's products are MACs, not array weight uses.
           item.compute_cycles = CeilDiv(uses, uint64_t(arch_.vector.lanes));
-          item.vector_macs = uses;
+          item.events.vector_macs = uses;
         }
         item.sram_read_accesses = CeilDiv(tile_bytes, bank_width) +
                                   CeilDiv(mt * kk * act_bytes, bank_width) * CeilDiv(nn, trees);
@@ -307,8 +307,8 @@ void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_i
     item.load_address = KvAddress(op) + half + v0 * vector_bytes;
     item.load_bytes = count * vector_bytes;
     item.load_after_stores = v0 == 0;  // the cache holds this step's appended keys
-    item.vector_macs = ShareOf(macs, v0, v0 + count, vectors);
-    item.compute_cycles = CeilDiv(item.vector_macs, lanes);
+    item.events.vector_macs = ShareOf(macs, v0, v0 + count, vectors);
+    item.compute_cycles = CeilDiv(item.events.vector_macs, lanes);
     item.sram_read_accesses = CeilDiv(item.load_bytes, bank_width);
     out.push_back(item);
   }
@@ -334,7 +334,7 @@ void Tiler::PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op
       item.load_bytes =
           BitsToBytes(elements, WeightBits(op.weights, ArrayKind::kInt8Mac, arch_.packing.format));
       item.load_address = WeightAddress(op, item.load_bytes);
-      item.vector_elementwise = elements;
+      item.events.vector_elementwise = elements;
       item.compute_cycles = CeilDiv(elements, lanes);
       break;
     case OpKind::kNorm:
@@ -342,23 +342,23 @@ void Tiler::PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op
       item.load_kind = LoadKind::kWeights;
       item.load_bytes = n * 2;
       item.load_address = WeightAddress(op, item.load_bytes);
-      item.vector_macs = elements;
-      item.vector_elementwise = elements;
-      item.vector_special = m;
+      item.events.vector_macs = elements;
+      item.events.vector_elementwise = elements;
+      item.events.vector_special = m;
       item.compute_cycles = CeilDiv(2 * elements, lanes) + CeilDiv(m, special);
       break;
     case OpKind::kQuantize:
       // Absmax per row, one reciprocal per row, scale and round each element.
-      item.vector_elementwise = 2 * elements;
-      item.vector_special = m;
+      item.events.vector_elementwise = 2 * elements;
+      item.events.vector_special = m;
       item.compute_cycles = CeilDiv(2 * elements, lanes) + CeilDiv(m, special);
       break;
     case OpKind::kRope:
-      item.vector_macs = 2 * elements;
+      item.events.vector_macs = 2 * elements;
       item.compute_cycles = CeilDiv(2 * elements, lanes);
       break;
     case OpKind::kKvAppend:
-      item.vector_elementwise = elements;
+      item.events.vector_elementwise = elements;
       item.compute_cycles = CeilDiv(elements, lanes);
       item.store_address =
           KvAddress(op) +
@@ -369,18 +369,18 @@ void Tiler::PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op
       break;
     case OpKind::kSoftmax: {
       const uint64_t scores = uint64_t(op.heads) * AllRowKeys(op, step);
-      item.vector_special = scores;
-      item.vector_elementwise = scores;
+      item.events.vector_special = scores;
+      item.events.vector_elementwise = scores;
       item.compute_cycles = CeilDiv(scores, special) + CeilDiv(scores, lanes);
       break;
     }
     case OpKind::kActivation:
-      item.vector_special = elements;
-      item.vector_elementwise = elements;
+      item.events.vector_special = elements;
+      item.events.vector_elementwise = elements;
       item.compute_cycles = CeilDiv(elements, special) + CeilDiv(elements, lanes);
       break;
     case OpKind::kResidual:
-      item.vector_elementwise = elements;
+      item.events.vector_elementwise = elements;
       item.compute_cycles = CeilDiv(elements, lanes);
       break;
     default:

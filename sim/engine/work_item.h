@@ -8,6 +8,8 @@
 
 #include <cstdint>
 
+#include "engine/run_result.h"
+
 namespace tritsim {
 
 enum class Unit { kTreeArray, kVectorUnit };
@@ -38,14 +40,10 @@ struct WorkItem {
   // Scratchpad bank accesses the unit makes while computing (for conflicts).
   uint64_t sram_read_accesses = 0;
 
-  // Energy events this item causes (see EventCounts).
-  uint64_t weight_uses = 0;
-  uint64_t weight_uses_zero = 0;
-  uint64_t accumulator_adds = 0;
-  uint64_t decoder_bytes = 0;
-  uint64_t vector_macs = 0;
-  uint64_t vector_special = 0;
-  uint64_t vector_elementwise = 0;
+  // Arithmetic and decoder events this item causes in its unit (the
+  // scratchpad and DRAM fields stay zero: the sequencer derives those from
+  // the item's accesses and transfers).
+  EventCounts events;
 };
 
 }  // namespace tritsim

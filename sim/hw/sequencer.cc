@@ -178,13 +178,7 @@ void Sequencer::RunItem(const WorkItem& item) {
 
 void Sequencer::CountItemEvents(const WorkItem& item, EventCounts& e) const {
   const uint64_t bank_width = uint64_t(arch_.sram.bank_width_bytes);
-  e.weight_uses += item.weight_uses;
-  e.weight_uses_zero += item.weight_uses_zero;
-  e.accumulator_adds += item.accumulator_adds;
-  e.decoder_bytes += item.decoder_bytes;
-  e.vector_macs += item.vector_macs;
-  e.vector_special += item.vector_special;
-  e.vector_elementwise += item.vector_elementwise;
+  AddEvents(item.events, e);
   e.sram_reads += item.sram_read_accesses + (item.store_bytes + bank_width - 1) / bank_width;
   e.sram_writes += (item.load_bytes + bank_width - 1) / bank_width;
   e.dram_bytes_read += item.load_bytes;

@@ -7,16 +7,10 @@ VectorUnit::VectorUnit(sc_core::sc_module_name name, const VectorUnitConfig& con
     : TimedComputeUnit(name, period_ps, sram), config_(config) {}
 
 uint64_t VectorUnit::Execute(const WorkItem& item) {
-  counts_.vector_macs += item.vector_macs;
-  counts_.vector_special += item.vector_special;
-  counts_.vector_elementwise += item.vector_elementwise;
+  tritsim::AddEvents(item.events, counts_);
   return RunTimed(item);
 }
 
-void VectorUnit::AddEvents(EventCounts& events) const {
-  events.vector_macs += counts_.vector_macs;
-  events.vector_special += counts_.vector_special;
-  events.vector_elementwise += counts_.vector_elementwise;
-}
+void VectorUnit::AddEvents(EventCounts& events) const { tritsim::AddEvents(counts_, events); }
 
 }  // namespace tritsim
