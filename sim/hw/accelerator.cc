@@ -27,8 +27,8 @@ void Accelerator::Collect(RunResult& result) {
   const HardwareRates& rates = sequencer_.rates();
   result.core_mhz = 1e6 / double(period_ps_);
   result.dram = memory_->stats();
-  tree_array_.AddEvents(result.events);
-  vector_unit_.AddEvents(result.events);
+  tree_array_.AddEventsTo(result.events);
+  vector_unit_.AddEventsTo(result.events);
   result.events.sram_reads = sram_.reads();
   result.events.sram_writes = sram_.writes();
   result.events.dram_bytes_read = dma_.bytes_loaded();

@@ -6,7 +6,8 @@ TimedComputeUnit::TimedComputeUnit(sc_core::sc_module_name name, uint64_t period
                                    Scratchpad& sram)
     : sc_core::sc_module(name), period_ps_(period_ps), sram_(sram) {}
 
-uint64_t TimedComputeUnit::RunTimed(const WorkItem& item) {
+uint64_t TimedComputeUnit::Execute(const WorkItem& item) {
+  AddEvents(item.events, counts_);
   const uint64_t now_ps = sc_core::sc_time_stamp().value();
   const uint64_t conflicts =
       sram_.ReadWindow(now_ps, now_ps + item.compute_cycles * period_ps_, item.sram_read_accesses);

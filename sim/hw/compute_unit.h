@@ -7,6 +7,7 @@
 
 #include <systemc>
 
+#include "engine/run_result.h"
 #include "engine/work_item.h"
 #include "hw/scratchpad.h"
 #include "report/vcd_writer.h"
@@ -23,10 +24,15 @@ class ComputeUnitIf : public virtual sc_core::sc_interface {
 
 // The timing every compute unit shares: an item's cycles (from the tiler)
 // plus the scratchpad conflicts its reads meet, waited out in the caller's
-// thread, with busy cycles counted and, for --vcd, the busy interval logged.
+// thread, with busy cycles and the item's energy events counted and, for
+// --vcd, the busy interval logged.
 class TimedComputeUnit : public sc_core::sc_module, public ComputeUnitIf {
  public:
   TimedComputeUnit(sc_core::sc_module_name name, uint64_t period_ps, Scratchpad& sram);
+
+  uint64_t Execute(const WorkItem& item) override;
+  // Adds this unit's event counts into `events`.
+  void AddEventsTo(EventCounts& events) const { AddEvents(counts_, events); }
 
   uint64_t busy_cycles() const { return busy_cycles_; }
   // Optional: busy intervals go to `log` as `signal` (for --vcd).
@@ -36,13 +42,11 @@ class TimedComputeUnit : public sc_core::sc_module, public ComputeUnitIf {
   }
 
  protected:
-  // Waits out `item` (compute cycles + conflicts); returns the conflicts.
-  uint64_t RunTimed(const WorkItem& item);
-
  private:
   uint64_t period_ps_;
   Scratchpad& sram_;
   uint64_t busy_cycles_ = 0;
+  EventCounts counts_;
   ActivityLog* log_ = nullptr;
   int signal_ = 0;
 };

@@ -9,7 +9,6 @@
 #pragma once
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
 #include "hw/compute_unit.h"
 
 namespace tritsim {
@@ -19,14 +18,8 @@ class TreeArray : public TimedComputeUnit {
   TreeArray(sc_core::sc_module_name name, const TreeArrayConfig& config, uint64_t period_ps,
             Scratchpad& sram);
 
-  uint64_t Execute(const WorkItem& item) override;
-
-  // Adds this unit's counts into `events`.
-  void AddEvents(EventCounts& events) const;
-
  private:
   TreeArrayConfig config_;
-  EventCounts counts_;
 };
 
 }  // namespace tritsim

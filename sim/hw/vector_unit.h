@@ -8,7 +8,6 @@
 #pragma once
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
 #include "hw/compute_unit.h"
 
 namespace tritsim {
@@ -18,13 +17,8 @@ class VectorUnit : public TimedComputeUnit {
   VectorUnit(sc_core::sc_module_name name, const VectorUnitConfig& config, uint64_t period_ps,
              Scratchpad& sram);
 
-  uint64_t Execute(const WorkItem& item) override;
-
-  void AddEvents(EventCounts& events) const;
-
  private:
   VectorUnitConfig config_;
-  EventCounts counts_;
 };
 
 }  // namespace tritsim
