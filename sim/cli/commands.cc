@@ -138,7 +138,8 @@ int RunCommand(const Args& args) {
         "--model or workload options");
   }
   const ArchConfig arch = LoadArch(in);
-  ResolveEnergyTable(arch.energy, arch.dram.preset);  // reject a bad energy table before running
+  // Resolved before running, so a bad energy table is rejected at once.
+  const EnergyTable table = ResolveEnergyTable(arch.energy, arch.dram.preset);
   std::unique_ptr<TraceSource> source;
   WorkloadConfig workload = in.workload;
   if (trace_path.empty()) {
@@ -150,9 +151,9 @@ int RunCommand(const Args& args) {
     workload = source->header().workload;
   }
   const RunResult run = RunSimulation(arch, *source, options);
-  const EnergyBreakdown energy = ComputeEnergy(arch, run);
+  const EnergyBreakdown energy = ComputeEnergyWithTable(arch, table, run);
   const AreaBreakdown area = EstimateArea(arch);
-  const RunReport report{arch, workload, run, energy, area};
+  const RunReport report{arch, workload, run, energy, area, table};
   if (!json_path.empty()) WriteFileAtomically(json_path, JsonText(RunJson(report)));
   if (!csv_path.empty()) WriteFileAtomically(csv_path, RunCsv(report));
   if (!plots_dir.empty()) WriteRunPlots(plots_dir, run, energy);

@@ -50,10 +50,10 @@ std::string Time(double seconds) {
 
 // Dynamic energy of one layer's own events (no leakage, no DRAM activates
 // or refreshes, which belong to the run as a whole).
-EnergyBreakdown LayerEnergy(const RunReport& r, const EnergyTable& table, const OpResult& layer) {
+EnergyBreakdown LayerEnergy(const RunReport& r, const OpResult& layer) {
   RunResult only;
   only.events = layer.events;
-  return ComputeEnergyWithTable(r.arch, table, only);
+  return ComputeEnergyWithTable(r.arch, r.table, only);
 }
 
 std::string Percent(double fraction) { return Fixed(fraction * 100.0, 1) + "%"; }
@@ -173,9 +173,8 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                  {"sram_reads", e.sram_reads},
                  {"sram_writes", e.sram_writes}};
   ordered_json layers = ordered_json::array();
-  const EnergyTable table = ResolveEnergyTable(r.arch.energy, r.arch.dram.preset);
   for (const OpResult& layer : run.layers) {
-    const EnergyBreakdown e = LayerEnergy(r, table, layer);
+    const EnergyBreakdown e = LayerEnergy(r, layer);
     layers.push_back({{"name", layer.op.name},
                       {"layer", layer.op.layer},
                       {"phase", PhaseName(layer.op.phase)},
@@ -199,9 +198,8 @@ std::string RunCsv(const RunReport& r) {
   out << "phase,layer,name,kind,tensor,cycles,seconds,ops,dram_bytes,intensity_ops_per_byte,"
          "bound_cycles,regime,roofline_efficiency,energy_joules,arithmetic_joules,sram_joules,"
          "dram_joules,decoder_joules\n";
-  const EnergyTable table = ResolveEnergyTable(r.arch.energy, r.arch.dram.preset);
   for (const OpResult& layer : r.run.layers) {
-    const EnergyBreakdown e = LayerEnergy(r, table, layer);
+    const EnergyBreakdown e = LayerEnergy(r, layer);
     char line[640];
     std::snprintf(
         line, sizeof line,

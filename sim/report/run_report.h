@@ -25,6 +25,7 @@ struct RunReport {
   const RunResult& run;
   const EnergyBreakdown& energy;
   const AreaBreakdown& area;
+  const EnergyTable& table;  // the resolved table `energy` was priced with
 };
 
 // Derived headline figures, shared by the JSON, the console and sweeps.
