@@ -14,7 +14,7 @@
 #include "config/dram_presets.h"
 #include "config/embedded_defaults.h"
 #include "config/yaml_reader.h"
-#include "energy/energy_table.h"
+#include "config/energy_table.h"
 
 namespace tritsim {
 namespace {

@@ -9,8 +9,8 @@
 #include <systemc>
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
-#include "engine/sim_options.h"
+#include "results/run_result.h"
+#include "mapping/sim_options.h"
 #include "hw/dma_engine.h"
 #include "hw/memory_system.h"
 #include "hw/scratchpad.h"

@@ -7,10 +7,10 @@
 
 #include <systemc>
 
-#include "engine/run_result.h"
-#include "engine/work_item.h"
+#include "results/run_result.h"
+#include "mapping/work_item.h"
 #include "hw/scratchpad.h"
-#include "report/vcd_writer.h"
+#include "results/activity_log.h"
 
 namespace tritsim {
 

@@ -19,7 +19,7 @@
 #include "config/arch_config.h"
 #include "hw/memory_system.h"
 #include "hw/scratchpad.h"
-#include "report/vcd_writer.h"
+#include "results/activity_log.h"
 
 namespace tritsim {
 

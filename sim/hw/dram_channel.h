@@ -39,7 +39,7 @@
 #include <vector>
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 

@@ -14,7 +14,7 @@
 #include <memory>
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 

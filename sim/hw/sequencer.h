@@ -23,8 +23,8 @@
 
 #include <systemc>
 
-#include "engine/run_result.h"
-#include "engine/tiler.h"
+#include "results/run_result.h"
+#include "mapping/tiler.h"
 #include "hw/compute_unit.h"
 #include "hw/dma_engine.h"
 #include "trace/trace_source.h"

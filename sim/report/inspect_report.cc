@@ -4,7 +4,7 @@
 #include <string>
 
 #include "config/dram_presets.h"
-#include "engine/tiler.h"
+#include "mapping/tiler.h"
 #include "model/model_stats.h"
 
 namespace tritsim {

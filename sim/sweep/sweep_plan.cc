@@ -9,7 +9,7 @@
 #include "common/error.h"
 #include "config/config_loader.h"
 #include "energy/area_model.h"
-#include "energy/energy_table.h"
+#include "config/energy_table.h"
 
 namespace tritsim {
 namespace {

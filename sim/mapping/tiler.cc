@@ -1,4 +1,4 @@
-#include "engine/tiler.h"
+#include "mapping/tiler.h"
 
 #include <algorithm>
 #include <cmath>

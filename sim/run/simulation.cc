@@ -1,4 +1,4 @@
-#include "engine/simulation.h"
+#include "run/simulation.h"
 
 #include <memory>
 

@@ -8,7 +8,7 @@
 
 #include <cstdint>
 
-#include "engine/run_result.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 

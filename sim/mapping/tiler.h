@@ -16,8 +16,8 @@
 #include <vector>
 
 #include "config/arch_config.h"
-#include "engine/sim_options.h"
-#include "engine/work_item.h"
+#include "mapping/sim_options.h"
+#include "mapping/work_item.h"
 #include "trace/trace_op.h"
 
 namespace tritsim {
