@@ -288,9 +288,12 @@ TEST(Datapath, ShapesOutsideTheBoundsAreUsageErrors) {
   EXPECT_NO_THROW(ValidateDatapathShape({}));
   try {
     ValidateDatapathShape({1, -3, 1});
+    ADD_FAILURE() << "--k -3 was accepted";
   } catch (const Error& e) {
     EXPECT_EQ(e.code(), ExitCode::kUsage);
-    EXPECT_NE(std::string(e.what()).find("--k: must be an integer in [1, 4096], got -3"), std::string::npos) << e.what();
+    EXPECT_NE(std::string(e.what()).find("--k: must be an integer in [1, 4096], got -3"),
+              std::string::npos)
+        << e.what();
   }
 }
 
