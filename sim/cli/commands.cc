@@ -8,6 +8,7 @@
 #include "cli/cli_options.h"
 #include "common/atomic_file.h"
 #include "common/error.h"
+#include "datapath/accumulator_width.h"
 #include "energy/area_model.h"
 #include "energy/energy_model.h"
 #include "config/energy_table.h"
@@ -37,6 +38,12 @@ void PrintHelp(const std::string& usage, const po::options_description& desc) {
 
 std::string JsonText(const nlohmann::ordered_json& j) { return j.dump(2) + "\n"; }
 
+// One line on stderr when the accumulator can wrap on the model's GEMMs.
+void WarnAccumulatorWidth(const ArchConfig& arch, const ModelConfig& model) {
+  const std::string warning = AccumulatorWarning(arch, model);
+  if (!warning.empty()) std::cerr << "tritsim: warning: " << warning << "\n";
+}
+
 }  // namespace
 
 std::string MainUsage() {
@@ -50,6 +57,7 @@ std::string MainUsage() {
          "  trace     write the layer trace of a model and workload\n"
          "  run       simulate a workload on a design point and report it\n"
          "  sweep     run many design points (see tritsim sweep --help)\n"
+         "  datapath  check the bit-exact datapath (packing, adder trees, accumulator)\n"
          "\n"
          "Results are model estimates for architecture exploration, not sign-off numbers.\n";
 }
@@ -74,6 +82,7 @@ int InspectCommand(const Args& args) {
   const ModelConfig model = LoadModel(in);
   const ArchConfig arch = LoadArch(in);
   ValidateWorkload(in.workload, model);
+  WarnAccumulatorWidth(arch, model);
   const InspectInputs inputs{model, arch, in.workload};
   if (!json_path.empty()) WriteFileAtomically(json_path, JsonText(InspectJson(inputs)));
   PrintInspect(inputs, std::cout);
@@ -145,6 +154,7 @@ int RunCommand(const Args& args) {
   if (trace_path.empty()) {
     const ModelConfig model = LoadModel(in);
     ValidateWorkload(in.workload, model);
+    WarnAccumulatorWidth(arch, model);
     source = BuildTrace(model, in.workload);
   } else {
     source = OpenTraceFile(trace_path);
