@@ -3,20 +3,21 @@
 #include <boost/program_options.hpp>
 #include <fstream>
 #include <iostream>
+#include <nlohmann/json.hpp>
 #include <sstream>
 
 #include "cli/cli_options.h"
 #include "common/atomic_file.h"
 #include "common/error.h"
+#include "config/energy_table.h"
 #include "datapath/accumulator_width.h"
 #include "energy/area_model.h"
 #include "energy/energy_model.h"
-#include "config/energy_table.h"
-#include "run/simulation.h"
 #include "model/trace_builder.h"
 #include "report/inspect_report.h"
 #include "report/plots.h"
 #include "report/run_report.h"
+#include "run/simulation.h"
 #include "trace/trace_reader.h"
 #include "trace/trace_writer.h"
 

@@ -1,6 +1,7 @@
 #include "report/inspect_report.h"
 
 #include <cstdio>
+#include <nlohmann/json.hpp>
 #include <string>
 
 #include "config/dram_presets.h"

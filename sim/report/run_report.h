@@ -7,7 +7,7 @@
 #include <ostream>
 #include <string>
 
-#include <nlohmann/json.hpp>
+#include <nlohmann/json_fwd.hpp>
 
 #include "config/arch_config.h"
 #include "config/workload_config.h"

@@ -7,8 +7,8 @@
 #pragma once
 
 #include "config/arch_config.h"
-#include "results/run_result.h"
 #include "mapping/sim_options.h"
+#include "results/run_result.h"
 #include "trace/trace_source.h"
 
 namespace tritsim {

@@ -8,8 +8,8 @@
 
 #include "common/error.h"
 #include "config/config_loader.h"
-#include "energy/area_model.h"
 #include "config/energy_table.h"
+#include "energy/area_model.h"
 
 namespace tritsim {
 namespace {

@@ -396,7 +396,8 @@ const BadCase kBadCases[] = {
      "arch_zero_bandwidth.yaml",
      nullptr,
      {},
-     "arch_zero_bandwidth.yaml:4: dram.ideal_bandwidth_gbps: must be a number in [0.01, 1000000], got "
+     "arch_zero_bandwidth.yaml:4: dram.ideal_bandwidth_gbps: must be a number in [0.01, 1000000], "
+     "got "
      "0"},
     {"NotANumber",
      Kind::kArch,
@@ -509,7 +510,8 @@ const BadCase kBadCases[] = {
      "arch_trefi_not_above_trfc.yaml",
      nullptr,
      {},
-     "arch_trefi_not_above_trfc.yaml:5: dram.timing.tREFI: tREFI (560) must be at least twice tRFC"},
+     "arch_trefi_not_above_trfc.yaml:5: dram.timing.tREFI: tREFI (560) must be at least twice "
+     "tRFC"},
     {"BadBurstLength",
      Kind::kArch,
      "arch_bad_burst_length.yaml",

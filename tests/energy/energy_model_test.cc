@@ -8,8 +8,8 @@
 #include <string>
 
 #include "common/error.h"
-#include "energy/area_model.h"
 #include "config/energy_table.h"
+#include "energy/area_model.h"
 
 namespace tritsim {
 namespace {

@@ -10,9 +10,9 @@
 #include "common/error.h"
 #include "config/config_loader.h"
 #include "config/dram_presets.h"
+#include "model/trace_builder.h"
 #include "run/simulation.h"
 #include "run/vector_trace.h"
-#include "model/trace_builder.h"
 
 namespace tritsim {
 namespace {
