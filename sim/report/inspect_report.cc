@@ -54,6 +54,10 @@ std::string G(double v) {
 
 }  // namespace
 
+double WeightBytesOnArch(const ModelConfig& model, const ArchConfig& arch) {
+  return StorageOnArch(ComputeModelStats(model), arch).total();
+}
+
 double PeakOpsPerSecond(const ArchConfig& arch) {
   const HardwareRates rates = ComputeRates(arch);
   return rates.array_ops_per_cycle / (double(rates.core_period_ps) * 1e-12);
