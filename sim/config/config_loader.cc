@@ -329,10 +329,11 @@ void ReadEnergy(const Section& s, EnergyConfig& e) {
   const int node = s.ReadChoice("node", {"7nm", "45nm"});
   if (node >= 0) e.node = node == 0 ? "7nm" : "45nm";
   // Override names are the entries of the node's built-in table (owned by
-  // the energy model) plus "dram_pj_per_bit".
+  // the energy model) plus the two resolved from the DRAM preset.
   std::vector<std::string> known;
   for (const auto& entry : BuiltinEnergyTable(e.node).entries) known.push_back(entry.first);
   known.push_back(kDramPjPerBitEntry);
+  known.push_back(kDramRefreshEntry);
   std::vector<std::pair<std::string, double>> entries;
   s.ReadNumberMap("overrides", kEnergyPj, known, entries);
   for (const auto& [name, value] : entries) e.overrides_pj[name] = value;

@@ -132,35 +132,85 @@ void ResetPresetFields(DramConfig& dram) {
   dram.ideal_bandwidth_gbps = fresh.ideal_bandwidth_gbps;
 }
 
+// Refresh energy inputs: one all-bank REF draws (IDD5B - IDD3N) at VDD for
+// tRFC in each device (the usual datasheet power calculation, common
+// practice; docs/references.md). Devices per channel: a DDR4 64-bit channel
+// is a rank of eight x8 devices; an LPDDR5 x16 channel and an HBM2E
+// pseudo-channel are one device's channel each.
+//
+// DDR4 8 Gb x8: about 0.2 A above standby at 1.2 V (L, from memory).
+constexpr double kDdr4RefreshAmps = 0.2;
+constexpr double kDdr4Vdd = 1.2;  // (JESD79-4; H)
+constexpr int kDdr4DevicesPerChannel = 8;
+// LPDDR5 x16 channel of one die: about 0.1 A above standby at VDD2H 1.05 V (L).
+constexpr double kLpddr5RefreshAmps = 0.1;
+constexpr double kLpddr5Vdd = 1.05;  // VDD2H (JESD209-5; M)
+// HBM2E pseudo-channel: about 0.05 A above standby, half a channel's (L), at 1.2 V.
+constexpr double kHbm2eRefreshAmps = 0.05;
+constexpr double kHbm2eVdd = 1.2;  // (JESD235; M)
+
+// The preset table: one row per preset, everything tritsim knows of it.
+const std::vector<DramPreset>& Table() {
+  static const std::vector<DramPreset> kTable = {
+      {"ddr4-3200", ApplyDdr4_3200, 17.5,
+       "midpoint of 15 - 20 pJ/bit for DDR4 (docs/references.md; L)", kDdr4RefreshAmps, kDdr4Vdd,
+       kDdr4DevicesPerChannel},
+      {"lpddr5-6400", ApplyLpddr5_6400, 6.0,
+       "midpoint of 4 - 8 pJ/bit for LPDDR4/5 (docs/references.md; L)", kLpddr5RefreshAmps,
+       kLpddr5Vdd, 1},
+      {"hbm2e", ApplyHbm2e, 3.97, "HBM2, O'Connor et al., MICRO 2017 (M; assumed equal for HBM2E)",
+       kHbm2eRefreshAmps, kHbm2eVdd, 1},
+      // Ideal memory: the DDR4 per-bit value, so sanity runs cost like the
+      // default channel; no refresh.
+      {"ideal", ApplyIdeal, 17.5, "the ddr4-3200 value (sanity runs)", 0.0, 0.0, 0},
+  };
+  return kTable;
+}
+
 }  // namespace
 
+double DramPreset::RefreshPjPerChannel() const {
+  if (devices_per_channel == 0) return 0.0;
+  DramConfig dram;
+  apply(dram);
+  constexpr double kPjPerAmpVoltNs = 1e3;  // A x V x ns = nJ = 1e3 pJ
+  const double trfc_ns = double(dram.timing.tRFC) * dram.timing.tCK_ns;
+  return double(devices_per_channel) * refresh_amps * vdd_volts * trfc_ns * kPjPerAmpVoltNs;
+}
+
+const std::vector<DramPreset>& DramPresetTable() { return Table(); }
+
 const std::vector<std::string>& DramPresetNames() {
-  static const std::vector<std::string> kNames = {"ddr4-3200", "lpddr5-6400", "hbm2e", "ideal"};
+  static const std::vector<std::string> kNames = [] {
+    std::vector<std::string> names;
+    for (const DramPreset& p : Table()) names.push_back(p.name);
+    return names;
+  }();
   return kNames;
 }
 
-bool IsDramPreset(const std::string& name) {
-  for (const std::string& n : DramPresetNames()) {
-    if (n == name) return true;
+const DramPreset* FindDramPreset(const std::string& name) {
+  for (const DramPreset& p : Table()) {
+    if (p.name == name) return &p;
   }
-  return false;
+  return nullptr;
+}
+
+bool IsDramPreset(const std::string& name) { return FindDramPreset(name) != nullptr; }
+
+const DramPreset& DramPresetOrThrow(const std::string& name) {
+  const DramPreset* preset = FindDramPreset(name);
+  if (preset) return *preset;
+  std::string allowed;
+  for (const std::string& n : DramPresetNames()) allowed += (allowed.empty() ? "" : " | ") + n;
+  throw Error(ExitCode::kBadInput,
+              "dram.preset: unknown preset '" + name + "'; allowed: " + allowed);
 }
 
 void ApplyDramPreset(const std::string& preset, DramConfig& dram) {
-  if (!IsDramPreset(preset)) {
-    throw Error(ExitCode::kBadInput, "dram.preset: unknown preset '" + preset +
-                                         "'; allowed: ddr4-3200, lpddr5-6400, hbm2e, ideal");
-  }
+  const DramPreset& row = DramPresetOrThrow(preset);
   ResetPresetFields(dram);
-  if (preset == "ddr4-3200") {
-    ApplyDdr4_3200(dram);
-  } else if (preset == "lpddr5-6400") {
-    ApplyLpddr5_6400(dram);
-  } else if (preset == "hbm2e") {
-    ApplyHbm2e(dram);
-  } else {
-    ApplyIdeal(dram);
-  }
+  row.apply(dram);
   dram.preset = preset;
 }
 

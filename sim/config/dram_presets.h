@@ -18,12 +18,35 @@
 
 namespace tritsim {
 
-// Preset names in the order the docs and error messages list them:
+// One built-in DRAM preset: everything tritsim knows of a device standard,
+// each value with its source and confidence (dram_presets.cc). The loader
+// applies `apply`, the energy table takes the per-bit and refresh energy,
+// and a test checks docs/config-reference.md against this table.
+struct DramPreset {
+  const char* name;               // e.g. "ddr4-3200"
+  void (*apply)(DramConfig&);     // organisation and JEDEC timing of one channel
+  double pj_per_bit;              // whole-access energy per bit moved
+  const char* pj_per_bit_source;  // where pj_per_bit comes from, with confidence
+  double refresh_amps;            // IDD5B - IDD3N of one device during a REF, A
+  double vdd_volts;               // the supply that current is drawn from, V
+  int devices_per_channel;        // devices one REF command reaches (0: no refresh)
+
+  // Energy of one all-bank REF on one channel, pJ: devices x (IDD5B - IDD3N)
+  // x VDD x tRFC (the preset's own tRFC).
+  double RefreshPjPerChannel() const;
+};
+
+// The presets in the order the docs and error messages list them:
 // ddr4-3200, lpddr5-6400, hbm2e, ideal.
+const std::vector<DramPreset>& DramPresetTable();
 const std::vector<std::string>& DramPresetNames();
 
 // True if `name` is one of DramPresetNames().
 bool IsDramPreset(const std::string& name);
+
+// The row of `name`. Throws tritsim::Error (kBadInput) naming the allowed
+// presets for an unknown name.
+const DramPreset& DramPresetOrThrow(const std::string& name);
 
 // Bytes one request (one burst) moves on one channel:
 // bus_width_bits / 8 * burst_length.

@@ -5,6 +5,7 @@
 #include <iterator>
 
 #include "common/error.h"
+#include "config/dram_presets.h"
 
 namespace tritsim {
 namespace {
@@ -47,16 +48,8 @@ constexpr double k7SramScale = 0.4;
 
 // ---------------------------------------------------------------------------
 // Shared by both tables. DRAM is its own die and process: its energy does
-// not follow the logic node.
-// DDR4-3200: 17.5 pJ/bit, the midpoint of the 15 - 20 pJ/bit range (L).
-constexpr double kDdr4PjPerBit = 17.5;
-// LPDDR5-6400: 6 pJ/bit, the midpoint of the 4 - 8 pJ/bit LPDDR4/5 range (L).
-constexpr double kLpddr5PjPerBit = 6.0;
-// HBM2E: 3.97 pJ/bit, HBM2 in O'Connor et al., MICRO 2017 (M; applied to
-// HBM2E on the assumption that the faster interface costs the same per bit).
-constexpr double kHbm2ePjPerBit = 3.97;
-// Ideal memory: the DDR4 value, so sanity runs cost like the default channel.
-constexpr double kIdealPjPerBit = kDdr4PjPerBit;
+// not follow the logic node; the per-bit and refresh figures of each preset
+// are in the preset table (dram_presets.cc).
 // The per-bit figures are whole-access figures from the literature, which
 // already hold row activation at typical locality. The activate and refresh
 // entries below charge activations and refreshes explicitly on top: with an
@@ -66,10 +59,6 @@ constexpr double kIdealPjPerBit = kDdr4PjPerBit;
 // One ACT(+PRE) across a channel-wide DDR4 row (8 KiB over eight x8 devices):
 // about 1 nJ (from memory, L; chosen to agree with the Horowitz range above).
 constexpr double kDramActivatePj = 1000.0;
-// One all-bank REF of a DDR4 8 Gb x8 rank: about 0.5 uJ (from memory, L:
-// (IDD5B - IDD3N) ~ 0.2 A x VDD 1.2 V x tRFC 350 ns ~ 80 nJ per device, times
-// eight devices, rounded down) -- about 64 mW per rank at tREFI = 7.8 us.
-constexpr double kDramRefreshPj = 500000.0;
 
 // Trit decoder, pJ per packed base-3 byte expanded into 5 trits: a 243-entry
 // x 10-bit lookup (8-bit decode plus a mux tree per output bit), estimated as
@@ -94,12 +83,10 @@ constexpr double kSramPointAccessBytes = 8.0;  // the published points are 64-bi
 
 // The DRAM and leakage entries shared by both tables.
 void AddCommonEntries(std::map<std::string, double>& e, double leakage_mw_per_mm2) {
-  e[DramPresetEntryName("ddr4-3200")] = kDdr4PjPerBit;
-  e[DramPresetEntryName("lpddr5-6400")] = kLpddr5PjPerBit;
-  e[DramPresetEntryName("hbm2e")] = kHbm2ePjPerBit;
-  e[DramPresetEntryName("ideal")] = kIdealPjPerBit;
+  for (const DramPreset& preset : DramPresetTable()) {
+    e[DramPresetEntryName(preset.name)] = preset.pj_per_bit;
+  }
   e["dram_activate_pj"] = kDramActivatePj;
-  e["dram_refresh_pj"] = kDramRefreshPj;
   e[kLeakageEntry] = leakage_mw_per_mm2;
 }
 
@@ -195,6 +182,7 @@ std::vector<std::string> OverridableNames(const EnergyTable& table) {
   std::vector<std::string> names;
   for (const auto& entry : table.entries) names.push_back(entry.first);
   names.push_back(kDramPjPerBitEntry);
+  names.push_back(kDramRefreshEntry);
   std::sort(names.begin(), names.end());
   return names;
 }
@@ -223,11 +211,6 @@ void ApplyOverrides(const EnergyConfig& energy, EnergyTable& table) {
   }
 }
 
-const std::vector<std::string>& KnownDramPresets() {
-  static const std::vector<std::string> names = {"ddr4-3200", "lpddr5-6400", "hbm2e", "ideal"};
-  return names;
-}
-
 double ResolvedDramPjPerBit(const EnergyConfig& energy, const std::string& dram_preset,
                             const EnergyTable& table) {
   if (energy.dram_pj_per_bit >= 0.0) {
@@ -236,12 +219,15 @@ double ResolvedDramPjPerBit(const EnergyConfig& energy, const std::string& dram_
   }
   auto direct = energy.overrides_pj.find(kDramPjPerBitEntry);
   if (direct != energy.overrides_pj.end()) return direct->second;
-  const auto& presets = KnownDramPresets();
-  if (std::find(presets.begin(), presets.end(), dram_preset) == presets.end()) {
-    throw Error(ExitCode::kBadInput, "dram.preset: unknown preset '" + dram_preset +
-                                         "'; allowed: " + JoinNames(presets, " | "));
-  }
-  return table.pj(DramPresetEntryName(dram_preset));
+  return table.pj(DramPresetEntryName(DramPresetOrThrow(dram_preset).name));
+}
+
+// One REF's energy on one channel: the preset's devices x (IDD5B - IDD3N) x
+// VDD x tRFC, unless energy.overrides names dram_refresh_pj.
+void ResolveRefresh(const EnergyConfig& energy, const std::string& dram_preset,
+                    EnergyTable& table) {
+  if (energy.overrides_pj.count(kDramRefreshEntry)) return;
+  table.entries[kDramRefreshEntry] = DramPresetOrThrow(dram_preset).RefreshPjPerChannel();
 }
 
 // Log-log interpolation of y(x) on the segment (x0, y0) - (x1, y1), also
@@ -283,6 +269,7 @@ EnergyTable ResolveEnergyTable(const EnergyConfig& energy, const std::string& dr
   EnergyTable table = BuiltinEnergyTable(energy.node);
   ApplyOverrides(energy, table);
   table.entries[kDramPjPerBitEntry] = ResolvedDramPjPerBit(energy, dram_preset, table);
+  ResolveRefresh(energy, dram_preset, table);
   return table;
 }
 

@@ -18,6 +18,8 @@ namespace tritsim {
 // Entry names that every table holds, besides the per-preset DRAM entries.
 inline constexpr const char* kDramPjPerBitEntry = "dram_pj_per_bit";
 inline constexpr const char* kLeakageEntry = "leakage_mw_per_mm2";
+// pJ per all-bank REF on one channel; resolved from the DRAM preset.
+inline constexpr const char* kDramRefreshEntry = "dram_refresh_pj";
 
 struct EnergyTable {
   std::string node;                       // "7nm" or "45nm"

@@ -281,7 +281,7 @@ TEST(DramPresets, ResultDoesNotDependOnWhatWasThereBefore) {
 TEST(DramPresets, UnknownPresetListsTheAllowedOnes) {
   DramConfig d;
   ExpectBadInput([&] { ApplyDramPreset("ddr5-4800", d); },
-                 "allowed: ddr4-3200, lpddr5-6400, hbm2e, ideal");
+                 "allowed: ddr4-3200 | lpddr5-6400 | hbm2e | ideal");
 }
 
 TEST(DramPresets, BurstBytesAreBusWidthTimesBurstLength) {
