@@ -13,8 +13,8 @@
 #include "common/error.h"
 #include "config/dram_presets.h"
 #include "config/embedded_defaults.h"
-#include "config/yaml_reader.h"
 #include "config/energy_table.h"
+#include "config/yaml_reader.h"
 
 namespace tritsim {
 namespace {
@@ -65,13 +65,14 @@ void ReadFfn(const Section& ffn, ModelConfig& m) {
 }
 
 void ReadPrecision(const Section& p, ModelConfig& m) {
-  const std::vector<std::string> any = {"ternary", "int8", "int16"};
+  const std::vector<std::string> any = {"ternary", "int8", "int16", "fp16"};
   const std::vector<WeightFormat> any_values = {WeightFormat::kTernary, WeightFormat::kInt8,
-                                                WeightFormat::kInt16};
+                                                WeightFormat::kInt16, WeightFormat::kFp16};
   // Embedding lookups and the output head are not ternary (Ma et al. 2024
   // keep them in higher precision), so only 8 or 16 bits are allowed.
-  const std::vector<std::string> dense = {"int8", "int16"};
-  const std::vector<WeightFormat> dense_values = {WeightFormat::kInt8, WeightFormat::kInt16};
+  const std::vector<std::string> dense = {"int8", "int16", "fp16"};
+  const std::vector<WeightFormat> dense_values = {WeightFormat::kInt8, WeightFormat::kInt16,
+                                                  WeightFormat::kFp16};
   ReadEnum(p, "attention", any, any_values, m.attention_weights);
   ReadEnum(p, "ffn", any, any_values, m.ffn_weights);
   ReadEnum(p, "embedding", dense, dense_values, m.embedding_weights);
@@ -266,8 +267,8 @@ void CheckTiming(const Section& s, const DramTiming& t) {
   // Refresh may take at most half the time (JEDEC parts spend a few percent;
   // beyond half a channel does little but refresh and runs crawl).
   if (t.tREFI < 2 * t.tRFC) {
-    s.FailAtAny({"tREFI", "tRFC"}, "tREFI (" + Cycles(t.tREFI) +
-                                       ") must be at least twice tRFC (" + Cycles(t.tRFC) + ")");
+    s.FailAtAny({"tREFI", "tRFC"}, "tREFI (" + Cycles(t.tREFI) + ") must be at least twice tRFC (" +
+                                       Cycles(t.tRFC) + ")");
   }
   if (t.tCCD_L < t.tCCD_S) {
     s.FailAtAny({"tCCD_L", "tCCD_S"}, "tCCD_L (" + Cycles(t.tCCD_L) +
