@@ -8,8 +8,8 @@
 
 #include "common/error.h"
 #include "config/config_loader.h"
-#include "energy/area_model.h"
 #include "config/energy_table.h"
+#include "energy/area_model.h"
 
 namespace tritsim {
 namespace {
@@ -269,8 +269,10 @@ std::vector<const SweepPoint*> ShardPoints(const SweepPlan& plan, size_t shard, 
 std::vector<std::string> PointRunArgs(const SweepPlan& plan, const SweepPoint& point,
                                       const std::string& json_path) {
   std::vector<std::string> args = {"run"};
-  if (!plan.file.model_path.empty()) args.insert(args.end(), {"--model", plan.file.model_path});
-  if (!plan.file.arch_path.empty()) args.insert(args.end(), {"--arch", plan.file.arch_path});
+  const std::string& model = point.model_path.empty() ? plan.file.model_path : point.model_path;
+  const std::string& arch = point.arch_path.empty() ? plan.file.arch_path : point.arch_path;
+  if (!model.empty()) args.insert(args.end(), {"--model", model});
+  if (!arch.empty()) args.insert(args.end(), {"--arch", arch});
   for (const SweepSetting& s : point.settings) {
     if (!IsWorkloadKey(s.key)) args.insert(args.end(), {"--set", s.key + "=" + s.value});
   }

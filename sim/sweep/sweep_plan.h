@@ -23,6 +23,10 @@ struct SweepPoint {
   std::vector<SweepSetting> settings;  // the keys this point sets, in axis order
   WorkloadConfig workload;             // base workload with workload.* settings applied
   double area_mm2 = 0.0;               // EstimateArea of the point's architecture
+  // Files of this point when they differ from the sweep file's base (set by
+  // callers that run unlike points, such as studies); "" = plan.file's.
+  std::string model_path;
+  std::string arch_path;
 };
 
 struct SweepPlan {
@@ -46,7 +50,8 @@ SweepPlan BuildSweepPlan(const SweepFile& file);
 std::vector<const SweepPoint*> ShardPoints(const SweepPlan& plan, size_t shard, size_t shards);
 
 // The arguments after the program name that run one point:
-// run [--model M] [--arch A] [--set K=V ...] --prefill .. --decode .. --context .. --batch ..
+// run [--model M] [--arch A] [--set K=V ...]   (M, A: the point's own, else the plan's) --prefill
+// .. --decode .. --context .. --batch ..
 //     --json JSON_PATH -q
 std::vector<std::string> PointRunArgs(const SweepPlan& plan, const SweepPoint& point,
                                       const std::string& json_path);
