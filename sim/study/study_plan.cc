@@ -49,14 +49,6 @@ std::string VariantId(size_t index, const StudyVariant& v) {
   return buf;
 }
 
-void SplitOverrides(const std::vector<SweepSetting>& settings, ConfigOverrides& arch,
-                    ConfigOverrides& model) {
-  for (const SweepSetting& s : settings) {
-    if (s.key.rfind("arch.", 0) == 0) arch.push_back({s.key.substr(5), s.value});
-    if (s.key.rfind("model.", 0) == 0) model.push_back({s.key.substr(6), s.value});
-  }
-}
-
 // Loads the variant's files with its overrides; what it implies.
 VariantFacts LoadFacts(const StudyVariant& v) {
   ConfigOverrides arch_over, model_over;

@@ -34,14 +34,6 @@ std::vector<SweepSetting> SettingsOf(const std::vector<std::string>& keys,
   return out;
 }
 
-void SplitOverrides(const std::vector<SweepSetting>& settings, ConfigOverrides& arch,
-                    ConfigOverrides& model) {
-  for (const SweepSetting& s : settings) {
-    if (s.key.rfind("arch.", 0) == 0) arch.push_back({s.key.substr(5), s.value});
-    if (s.key.rfind("model.", 0) == 0) model.push_back({s.key.substr(6), s.value});
-  }
-}
-
 ArchConfig LoadPointArch(const SweepFile& file, const ConfigOverrides& overrides) {
   return file.arch_path.empty() ? DefaultArch(overrides) : LoadArchFile(file.arch_path, overrides);
 }
@@ -222,6 +214,14 @@ double ValidateCandidate(const SweepFile& file, const std::vector<SweepSetting>&
 }
 
 }  // namespace
+
+void SplitOverrides(const std::vector<SweepSetting>& settings, ConfigOverrides& arch,
+                    ConfigOverrides& model) {
+  for (const SweepSetting& s : settings) {
+    if (s.key.rfind("arch.", 0) == 0) arch.push_back({s.key.substr(5), s.value});
+    if (s.key.rfind("model.", 0) == 0) model.push_back({s.key.substr(6), s.value});
+  }
+}
 
 SweepPlan BuildSweepPlan(const SweepFile& file) {
   SweepPlan plan;

@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "config/config_loader.h"
 #include "config/sweep_file.h"
 #include "config/workload_config.h"
 
@@ -55,6 +56,11 @@ std::vector<const SweepPoint*> ShardPoints(const SweepPlan& plan, size_t shard, 
 //     --json JSON_PATH -q
 std::vector<std::string> PointRunArgs(const SweepPlan& plan, const SweepPoint& point,
                                       const std::string& json_path);
+
+// Splits settings into arch and model overrides, prefixes ("arch.",
+// "model.") removed; workload keys are left out.
+void SplitOverrides(const std::vector<SweepSetting>& settings, ConfigOverrides& arch,
+                    ConfigOverrides& model);
 
 // "KEY=VALUE KEY=VALUE" of the point's settings, for listings and messages.
 std::string DescribePoint(const SweepPoint& point);
