@@ -61,6 +61,7 @@ std::string MainUsage() {
          "  trace     write the layer trace of a model and workload\n"
          "  run       simulate a workload on a design point and report it\n"
          "  sweep     run many design points (see tritsim sweep --help)\n"
+         "  compare   run a study's named variants side by side against a reference\n"
          "  datapath  check the bit-exact datapath (packing, adder trees, accumulator)\n"
          "\n"
          "Results are model estimates for architecture exploration, not sign-off numbers.\n";

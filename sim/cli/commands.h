@@ -16,6 +16,7 @@ int TraceCommand(const Args& args);
 int RunCommand(const Args& args);
 int SweepCommand(const Args& args);
 int DatapathCommand(const Args& args);  // cli/datapath_command.cc
+int CompareCommand(const Args& args);   // cli/compare_command.cc
 
 // Overall usage text (subcommands), for `tritsim --help`.
 std::string MainUsage();

@@ -22,7 +22,7 @@ const std::map<std::string, Command>& Commands() {
   static const std::map<std::string, Command> commands = {
       {"inspect", tritsim::InspectCommand},   {"trace", tritsim::TraceCommand},
       {"run", tritsim::RunCommand},           {"sweep", tritsim::SweepCommand},
-      {"datapath", tritsim::DatapathCommand},
+      {"datapath", tritsim::DatapathCommand}, {"compare", tritsim::CompareCommand},
   };
   return commands;
 }
@@ -39,8 +39,9 @@ int Dispatch(int argc, char** argv) {
   }
   auto it = Commands().find(name);
   if (it == Commands().end()) {
-    throw tritsim::UsageError("unknown command '" + name +
-                              "'; commands: inspect, trace, run, sweep, datapath (tritsim --help)");
+    throw tritsim::UsageError(
+        "unknown command '" + name +
+        "'; commands: inspect, trace, run, sweep, compare, datapath (tritsim --help)");
   }
   return it->second(tritsim::Args(argv + 2, argv + argc));
 }

@@ -65,13 +65,14 @@ void ReadFfn(const Section& ffn, ModelConfig& m) {
 }
 
 void ReadPrecision(const Section& p, ModelConfig& m) {
-  const std::vector<std::string> any = {"ternary", "int8", "int16"};
+  const std::vector<std::string> any = {"ternary", "int8", "int16", "fp16"};
   const std::vector<WeightFormat> any_values = {WeightFormat::kTernary, WeightFormat::kInt8,
-                                                WeightFormat::kInt16};
+                                                WeightFormat::kInt16, WeightFormat::kFp16};
   // Embedding lookups and the output head are not ternary (Ma et al. 2024
   // keep them in higher precision), so only 8 or 16 bits are allowed.
-  const std::vector<std::string> dense = {"int8", "int16"};
-  const std::vector<WeightFormat> dense_values = {WeightFormat::kInt8, WeightFormat::kInt16};
+  const std::vector<std::string> dense = {"int8", "int16", "fp16"};
+  const std::vector<WeightFormat> dense_values = {WeightFormat::kInt8, WeightFormat::kInt16,
+                                                  WeightFormat::kFp16};
   ReadEnum(p, "attention", any, any_values, m.attention_weights);
   ReadEnum(p, "ffn", any, any_values, m.ffn_weights);
   ReadEnum(p, "embedding", dense, dense_values, m.embedding_weights);

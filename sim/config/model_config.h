@@ -15,7 +15,10 @@ enum class Activation { kRelu, kGelu, kSilu, kRelu2 };
 
 // Storage precision of a weight tensor class. Ternary tensors are packed by
 // the architecture (2-bit or base-3); the model only says they are ternary.
-enum class WeightFormat { kTernary, kInt8, kInt16 };
+// kFp16 is IEEE half precision: stored like kInt16 (2 bytes a weight), named
+// apart so a model states what an FP16 baseline really holds. New values go
+// at the end: traces name formats by spelling (trace_format.cc).
+enum class WeightFormat { kTernary, kInt8, kInt16, kFp16 };
 
 struct ModelConfig {
   std::string name = "unnamed";  // label for reports
@@ -33,8 +36,8 @@ struct ModelConfig {
   // Precision per tensor class.
   WeightFormat attention_weights = WeightFormat::kTernary;  // q, k, v, o projections
   WeightFormat ffn_weights = WeightFormat::kTernary;        // gate, up, down
-  WeightFormat embedding_weights = WeightFormat::kInt8;     // 8 or 16 bit only
-  WeightFormat head_weights = WeightFormat::kInt8;          // 8 or 16 bit only
+  WeightFormat embedding_weights = WeightFormat::kInt8;     // int8, int16 or fp16 only
+  WeightFormat head_weights = WeightFormat::kInt8;          // int8, int16 or fp16 only
   int norm_bits = 16;                                       // RMSNorm gains, 8 or 16 bit
   int activation_bits = 8;                                  // activations between ops, 8 or 16
   int kv_bits = 8;                                          // KV-cache entries, 8 or 16

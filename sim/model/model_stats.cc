@@ -37,6 +37,7 @@ double BytesPerWeight(WeightFormat format, double ternary_bytes) {
     case WeightFormat::kInt8:
       return 1.0;
     case WeightFormat::kInt16:
+    case WeightFormat::kFp16:
       return 2.0;
   }
   return 0.0;
@@ -93,6 +94,7 @@ double WeightBits(WeightFormat format, ArrayKind kind, TritPacking packing) {
     case WeightFormat::kInt8:
       return 8.0;
     case WeightFormat::kInt16:
+    case WeightFormat::kFp16:
       return 16.0;
     case WeightFormat::kTernary:
       break;
@@ -106,6 +108,20 @@ double WeightBits(WeightFormat format, ArrayKind kind, TritPacking packing) {
       break;
   }
   return BytesPerTrit(packing) * kBitsPerByte;
+}
+
+ByClass WeightBytesOn(const ModelConfig& model, ArrayKind kind, TritPacking packing) {
+  const ByClass p = CountParameters(model);
+  const auto bytes = [&](WeightFormat format) {
+    return WeightBits(format, kind, packing) / kBitsPerByte;
+  };
+  ByClass b;
+  b.attention = p.attention * bytes(model.attention_weights);
+  b.ffn = p.ffn * bytes(model.ffn_weights);
+  b.embedding = p.embedding * bytes(model.embedding_weights);
+  b.head = p.head * bytes(model.head_weights);
+  b.norm = p.norm * double(model.norm_bits) / kBitsPerByte;
+  return b;
 }
 
 }  // namespace tritsim

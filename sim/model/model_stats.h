@@ -45,4 +45,9 @@ double BytesPerTrit(TritPacking packing);
 // array they are stored at the array's native width (8 or 16 bits).
 double WeightBits(WeightFormat format, ArrayKind kind, TritPacking packing);
 
+// Bytes each tensor class occupies on an array of `kind` with `packing`
+// (WeightBits per class; norms at norm_bits; a tied head stores nothing).
+// What the design point must hold in DRAM for the model's weights.
+ByClass WeightBytesOn(const ModelConfig& model, ArrayKind kind, TritPacking packing);
+
 }  // namespace tritsim

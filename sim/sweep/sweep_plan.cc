@@ -32,14 +32,6 @@ std::vector<SweepSetting> SettingsOf(const std::vector<std::string>& keys,
   return out;
 }
 
-void SplitOverrides(const std::vector<SweepSetting>& settings, ConfigOverrides& arch,
-                    ConfigOverrides& model) {
-  for (const SweepSetting& s : settings) {
-    if (s.key.rfind("arch.", 0) == 0) arch.push_back({s.key.substr(5), s.value});
-    if (s.key.rfind("model.", 0) == 0) model.push_back({s.key.substr(6), s.value});
-  }
-}
-
 ArchConfig LoadPointArch(const SweepFile& file, const ConfigOverrides& overrides) {
   return file.arch_path.empty() ? DefaultArch(overrides) : LoadArchFile(file.arch_path, overrides);
 }
@@ -214,6 +206,14 @@ double ValidateCandidate(const SweepFile& file, const std::vector<SweepSetting>&
 
 }  // namespace
 
+void SplitOverrides(const std::vector<SweepSetting>& settings, ConfigOverrides& arch,
+                    ConfigOverrides& model) {
+  for (const SweepSetting& s : settings) {
+    if (s.key.rfind("arch.", 0) == 0) arch.push_back({s.key.substr(5), s.value});
+    if (s.key.rfind("model.", 0) == 0) model.push_back({s.key.substr(6), s.value});
+  }
+}
+
 SweepPlan BuildSweepPlan(const SweepFile& file) {
   SweepPlan plan;
   plan.file = file;
@@ -263,8 +263,10 @@ std::vector<const SweepPoint*> ShardPoints(const SweepPlan& plan, size_t shard, 
 std::vector<std::string> PointRunArgs(const SweepPlan& plan, const SweepPoint& point,
                                       const std::string& json_path) {
   std::vector<std::string> args = {"run"};
-  if (!plan.file.model_path.empty()) args.insert(args.end(), {"--model", plan.file.model_path});
-  if (!plan.file.arch_path.empty()) args.insert(args.end(), {"--arch", plan.file.arch_path});
+  const std::string& model = point.model_path.empty() ? plan.file.model_path : point.model_path;
+  const std::string& arch = point.arch_path.empty() ? plan.file.arch_path : point.arch_path;
+  if (!model.empty()) args.insert(args.end(), {"--model", model});
+  if (!arch.empty()) args.insert(args.end(), {"--arch", arch});
   for (const SweepSetting& s : point.settings) {
     if (!IsWorkloadKey(s.key)) args.insert(args.end(), {"--set", s.key + "=" + s.value});
   }

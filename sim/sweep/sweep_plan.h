@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "config/config_loader.h"
 #include "config/sweep_file.h"
 #include "config/workload_config.h"
 #include "sweep/sweep_identity.h"
@@ -27,6 +28,10 @@ struct SweepPoint {
   // Hash of everything that decides the point's result (sweep_identity.h);
   // unlike `id` it changes when a base file, the base workload or tritsim does.
   std::string input_hash;
+  // Files of this point when they differ from the sweep file's base (set by
+  // callers that run unlike points, such as studies); "" = plan.file's.
+  std::string model_path;
+  std::string arch_path;
 };
 
 struct SweepPlan {
@@ -51,10 +56,16 @@ SweepPlan BuildSweepPlan(const SweepFile& file);
 std::vector<const SweepPoint*> ShardPoints(const SweepPlan& plan, size_t shard, size_t shards);
 
 // The arguments after the program name that run one point:
-// run [--model M] [--arch A] [--set K=V ...] --prefill .. --decode .. --context .. --batch ..
+// run [--model M] [--arch A] [--set K=V ...]   (M, A: the point's own, else the plan's) --prefill
+// .. --decode .. --context .. --batch ..
 //     --json JSON_PATH -q
 std::vector<std::string> PointRunArgs(const SweepPlan& plan, const SweepPoint& point,
                                       const std::string& json_path);
+
+// Splits settings into arch and model overrides, prefixes ("arch.",
+// "model.") removed; workload keys are left out.
+void SplitOverrides(const std::vector<SweepSetting>& settings, ConfigOverrides& arch,
+                    ConfigOverrides& model);
 
 // "KEY=VALUE KEY=VALUE" of the point's settings, for listings and messages.
 std::string DescribePoint(const SweepPoint& point);

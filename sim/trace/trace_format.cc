@@ -42,6 +42,7 @@ constexpr NameEntry<WeightFormat> kWeightFormatNames[] = {
     {WeightFormat::kTernary, "ternary"},
     {WeightFormat::kInt8, "int8"},
     {WeightFormat::kInt16, "int16"},
+    {WeightFormat::kFp16, "fp16"},  // added later: older traces never name it
 };
 
 template <typename E, size_t N>

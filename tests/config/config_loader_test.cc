@@ -573,7 +573,7 @@ const BadCase kBadCases[] = {
      "model_embedding_ternary.yaml",
      nullptr,
      {},
-     "model_embedding_ternary.yaml:4: precision.embedding: must be one of int8, int16; got "
+     "model_embedding_ternary.yaml:4: precision.embedding: must be one of int8, int16, fp16; got "
      "'ternary'"},
     {"ZeroFractionOne",
      Kind::kModel,

@@ -1,0 +1,94 @@
+// Study plots. See study_plots.h.
+#include "study/study_plots.h"
+
+#include <cmath>
+#include <cstdio>
+#include <sstream>
+
+#include "report/gnuplot.h"
+
+namespace tritsim {
+namespace {
+
+constexpr int kWidthPx = 960;
+constexpr int kHeightPx = 540;
+constexpr double kBytesPerGb = 1e9;
+
+std::string Header(const std::string& name, const std::string& title) {
+  std::ostringstream s;
+  s << "# " << title << "\n"
+    << "# Written by tritsim compare; reads " << name << ".dat from this directory.\n"
+    << "if (!exists(\"outfile\")) outfile = \"" << name << ".svg\"\n"
+    << "set terminal svg size " << kWidthPx << "," << kHeightPx
+    << " noenhanced font \"sans,12\" background \"white\"\n"
+    << "set output outfile\n"
+    << "set title \"" << title << "\"\n"
+    << "set datafile missing \"?\"\n"
+    << "set style data histograms\n"
+    << "set style fill solid 0.8 border -1\n"
+    << "set grid ytics\n"
+    << "set key outside right top\n"
+    << "set yrange [0:*]\n";
+  return s.str();
+}
+
+std::string Number(double v) {
+  if (std::isnan(v)) return "?";
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.6g", v);
+  return buf;
+}
+
+// Rows: figures; columns: variants' ratios.
+void RatioPlot(const std::string& dir, const StudyTable& t) {
+  std::ostringstream data;
+  data << "figure";
+  for (const StudyRow& r : t.rows) data << " " << r.variant;
+  data << "\n";
+  for (size_t f = 0; f < StudyFigures().size(); ++f) {
+    data << StudyFigures()[f].key;
+    for (const StudyRow& r : t.rows) data << " " << Number(r.ratios[f]);
+    data << "\n";
+  }
+  std::ostringstream gp;
+  gp << Header("ratios", "study " + t.study + ": ratio to " + t.reference)
+     << "set style histogram clustered gap 1\n"
+     << "set ylabel \"ratio to " << t.reference << "\"\n"
+     << "set xtics rotate by -30\n"
+     << "set arrow from graph 0, first 1 to graph 1, first 1 nohead dashtype 2\n"
+     << "plot for [i=2:" << t.rows.size() + 1
+     << "] \"ratios.dat\" using i:xtic(1) title columnheader(i)\n";
+  RenderGnuplot(dir, "ratios", data.str(), gp.str());
+}
+
+// Rows: variants; columns: weight GB, KV GB.
+void MemoryPlot(const std::string& dir, const StudyTable& t) {
+  size_t weights = 0, kv = 0;
+  for (size_t f = 0; f < StudyFigures().size(); ++f) {
+    if (std::string(StudyFigures()[f].key) == "weight_bytes") weights = f;
+    if (std::string(StudyFigures()[f].key) == "kv_bytes") kv = f;
+  }
+  std::ostringstream data;
+  data << "variant weights_GB kv_cache_GB\n";
+  for (const StudyRow& r : t.rows) {
+    data << r.variant << " " << Number(r.figures[weights] / kBytesPerGb) << " "
+         << Number(r.figures[kv] / kBytesPerGb) << "\n";
+  }
+  std::ostringstream gp;
+  gp << Header("memory", "study " + t.study + ": memory footprint at the workload")
+     << "set style histogram rowstacked\n"
+     << "set ylabel \"GB (1e9 bytes)\"\n"
+     << "set boxwidth 0.6\n"
+     << "plot \"memory.dat\" using 2:xtic(1) title columnheader(2), \"\" using 3 title "
+        "columnheader(3)\n";
+  RenderGnuplot(dir, "memory", data.str(), gp.str());
+}
+
+}  // namespace
+
+void WriteStudyPlots(const std::string& dir, const StudyTable& table) {
+  RatioPlot(dir, table);
+  MemoryPlot(dir, table);
+}
+
+}  // namespace tritsim
