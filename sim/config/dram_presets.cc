@@ -228,4 +228,15 @@ double DramPeakBytesPerSecond(const DramConfig& dram) {
          static_cast<double>(dram.bus_width_bits / 8);
 }
 
+double DramRowHitLatencyNs(const DramConfig& dram) {
+  if (dram.is_ideal()) return dram.ideal_latency_ns;
+  const DramTiming& t = dram.timing;
+  return (double(t.CL) + double(t.burst_length) / 2.0) * t.tCK_ns;
+}
+
+double DramRowMissLatencyNs(const DramConfig& dram) {
+  if (dram.is_ideal()) return dram.ideal_latency_ns;
+  return DramRowHitLatencyNs(dram) + double(dram.timing.tRCD) * dram.timing.tCK_ns;
+}
+
 }  // namespace tritsim

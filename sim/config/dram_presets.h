@@ -58,4 +58,10 @@ int64_t DramBurstBytes(const DramConfig& dram);
 // ideal_bandwidth_gbps * 1e9.
 double DramPeakBytesPerSecond(const DramConfig& dram);
 
+// Shortest time from a read request to its last data, ns: a row hit, CL
+// plus the burst (BL/2 tCK). Ideal memory: ideal_latency_ns.
+double DramRowHitLatencyNs(const DramConfig& dram);
+// A read to a closed bank: tRCD + CL + BL/2 tCK. Ideal memory: ideal_latency_ns.
+double DramRowMissLatencyNs(const DramConfig& dram);
+
 }  // namespace tritsim

@@ -26,7 +26,8 @@ Sequencer::Sequencer(sc_core::sc_module_name name, const ArchConfig& arch,
       tree_array_(tree_array),
       vector_unit_(vector_unit),
       tiler_(arch, options),
-      period_ps_(tiler_.rates().core_period_ps) {
+      period_ps_(tiler_.rates().core_period_ps),
+      free_stream_bytes_(tiler_.rates().stream_bytes) {
   SC_THREAD(IssueThread);
   SC_THREAD(ComputeThread);
 }
@@ -102,9 +103,11 @@ void Sequencer::IssueOp(const TraceOp& op, const TraceStep& step) {
   ops_in_flight_.push_back(meta);
   OpInFlight& live = ops_in_flight_.back();
   for (const WorkItem& item : items) {
-    issue_state_ = "a free scratchpad slot for " + op.name;
-    while (free_slots_ == 0) wait(slot_freed_);
-    --free_slots_;
+    if (StreamedBytes(item) > 0) {
+      issue_state_ = "room in the scratchpad's stream region for " + op.name;
+      while (free_stream_bytes_ < StreamedBytes(item)) wait(slot_freed_);
+      free_stream_bytes_ -= StreamedBytes(item);
+    }
     if (item.load_after_stores) {
       issue_state_ = "earlier ops to retire before loading " + op.name;
       while (ops_retired_ < live.index) wait(op_retired_);
@@ -169,8 +172,10 @@ void Sequencer::RunItem(const WorkItem& item) {
     stalls_.vector_wait += run.cost.cycles + run.conflict_cycles;
   }
   mark_ps_ = now;
-  ++free_slots_;
-  slot_freed_.notify(sc_core::SC_ZERO_TIME);
+  if (StreamedBytes(item) > 0) {
+    free_stream_bytes_ += StreamedBytes(item);
+    slot_freed_.notify(sc_core::SC_ZERO_TIME);
+  }
   if (item.store_bytes > 0) dma_.PostStore(item.store_address, item.store_bytes);
   AddEvents(run.cost.events, op.events);
   op.events.sram_reads += run.cost.sram_read_accesses;

@@ -2,9 +2,13 @@
 //
 // Two SC_THREADs share a bounded queue of work items (the tiler's tiles):
 //  - IssueThread pulls records from the trace, plans each op with the
-//    Tiler, and for every item waits for a free scratchpad slot (two slots:
-//    double buffering), then loads the item's operands through the DMA
-//    engine. A load of data an earlier op stored (spilled activations, the
+//    Tiler, and for every item that streams weights or KV entries in waits
+//    for room in the scratchpad's stream region (half the capacity, at least
+//    two tiles: double buffering and deeper prefetch), then loads them
+//    through the DMA engine. Items that stream nothing (vector work on
+//    on-chip activations, spilled activations, which live in the activation
+//    half) take no room, so the next op's weights stream in while the
+//    current op computes. A load of data an earlier op stored (spilled activations, the
 //    KV cache just appended) waits until those ops have retired.
 //  - ComputeThread takes loaded items in order and runs them on the tree
 //    array or the vector unit, posts their stores, and retires an op when
@@ -13,6 +17,7 @@
 // run is charged to exactly one StallBreakdown cause.
 #pragma once
 
+#include <algorithm>
 #include <cstdint>
 #include <deque>
 #include <exception>
@@ -66,6 +71,14 @@ class Sequencer : public sc_core::sc_module {
   void ComputeThread();
   void IssueOp(const TraceOp& op, const TraceStep& step);
   void RunItem(const WorkItem& item);
+  // Bytes of the stream region an item occupies from its load until it has
+  // run; a load larger than the region (a whole embedding gather) waits for
+  // the region to empty and takes all of it.
+  uint64_t StreamedBytes(const WorkItem& item) const {
+    const bool streamed =
+        item.load_kind == LoadKind::kWeights || item.load_kind == LoadKind::kKvCache;
+    return streamed ? std::min(item.load_bytes, tiler_.rates().stream_bytes) : 0;
+  }
   void RetireOp(OpInFlight& op);
   void Charge(uint64_t& bucket);
   void AlignToCycle();
@@ -80,8 +93,7 @@ class Sequencer : public sc_core::sc_module {
   Tiler tiler_;
   uint64_t period_ps_;
 
-  static constexpr int kSlots = 2;  // double buffering
-  int free_slots_ = kSlots;
+  uint64_t free_stream_bytes_;            // room left in the stream region
   std::deque<WorkItem> loaded_;           // issue -> compute
   std::deque<OpInFlight> ops_in_flight_;  // planned, not yet retired
   int64_t ops_issued_ = 0;

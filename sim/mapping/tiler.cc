@@ -65,6 +65,22 @@ uint64_t ShareOf(uint64_t total, uint64_t cum_before, uint64_t cum_after, uint64
   return hi - lo;
 }
 
+// Streamed tiles are cut no larger than needed to hide a transfer's fixed
+// cost (the DMA setup plus the first access's row-miss latency) behind its
+// data: that cost is at most 1/kTransferAmortization of the tile's transfer
+// at peak bandwidth; never below kMinTileBytes. A larger scratchpad then buys
+// a deeper prefetch, not coarser tiles (docs/engine.md).
+constexpr double kTransferAmortization = 16.0;
+constexpr uint64_t kMinTileBytes = 64 * 1024;
+constexpr uint64_t kTileGrainBytes = 4096;
+
+uint64_t TileCapBytes(const ArchConfig& arch, double dram_bytes_per_cycle, uint64_t period_ps) {
+  const double latency_cycles = DramRowMissLatencyNs(arch.dram) * 1000.0 / double(period_ps);
+  const double fixed_cycles = double(arch.dma.setup_cycles) + latency_cycles;
+  const double amortized = kTransferAmortization * fixed_cycles * dram_bytes_per_cycle;
+  return std::max(kMinTileBytes, RoundUp(uint64_t(std::ceil(amortized)), kTileGrainBytes));
+}
+
 }  // namespace
 
 HardwareRates ComputeRates(const ArchConfig& arch) {
@@ -72,10 +88,12 @@ HardwareRates ComputeRates(const ArchConfig& arch) {
   r.core_period_ps = std::max<uint64_t>(1, uint64_t(std::llround(1e6 / arch.clock.core_mhz)));
   const uint64_t capacity = uint64_t(arch.sram.capacity_kib) * 1024;
   r.activation_bytes = capacity / 2;
-  r.slot_bytes = capacity / 4;
+  r.stream_bytes = capacity - r.activation_bytes;
   r.array_ops_per_cycle = 2.0 * double(arch.array.trees) * double(arch.array.fan_in);
   r.vector_ops_per_cycle = 2.0 * double(arch.vector.lanes);
   r.dram_bytes_per_cycle = DramPeakBytesPerSecond(arch.dram) * double(r.core_period_ps) * 1e-12;
+  r.slot_bytes =
+      std::min(r.stream_bytes / 2, TileCapBytes(arch, r.dram_bytes_per_cycle, r.core_period_ps));
   return r;
 }
 
@@ -232,7 +250,11 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
       work.n = std::min(n_tile, n - n0);
       for (uint64_t k0 = 0; k0 < k; k0 += k_tile) {
         work.k = std::min(k_tile, k - k0);
-        work.weight_bytes = BitsToBytes(work.k * work.n, weight_bits);
+        // Trits [start, start + k x n) of the packed tensor; whole bytes
+        // from the one holding trit `start`, so tiles partition the tensor.
+        const uint64_t start = n0 * k + k0 * work.n;
+        const uint64_t first_byte = BitsToBytes(start, weight_bits);
+        work.weight_bytes = BitsToBytes(start + work.k * work.n, weight_bits) - first_byte;
         WorkItem item;
         item.op_index = op_index;
         item.unit = unit;
@@ -240,7 +262,7 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
         if (!options_.weights_resident) {
           item.load_kind = LoadKind::kWeights;
           item.load_bytes = work.weight_bytes;
-          item.load_address = weight_base + BitsToBytes(n0 * k + k0 * work.n, weight_bits);
+          item.load_address = weight_base + first_byte;
         }
         if (acts.output_to_dram && k0 + work.k >= k) {
           item.store_address = kSpillBase + kSpillStride + (m0 * n + n0 * work.rows) * act_bytes;
@@ -275,7 +297,9 @@ void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_i
     item.load_kind = LoadKind::kKvCache;
     item.load_address = KvAddress(op) + half + v0 * vector_bytes;
     item.load_bytes = count * vector_bytes;
-    item.load_after_stores = v0 == 0;  // the cache holds this step's appended keys
+    // No wait for this step's KV append: the new keys and values are still
+    // on chip (the projections just produced them), so the stream of the
+    // cached context may start while they are stored.
     item.work.computes = true;
     item.work.kind = op.kind;
     item.work.elements = ShareOf(macs, v0, v0 + count, vectors);
@@ -336,19 +360,19 @@ void Tiler::PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op
     const bool from_dram = activations_in_dram_;
     const ActivationPlan acts =
         PlanActivations(op, uint64_t(op.n) * act_bytes, uint64_t(op.n) * act_bytes);
-    if (from_dram || acts.output_to_dram) {
+    if (from_dram) {
       WorkItem load;
       load.op_index = op_index;
       load.unit = Unit::kVectorUnit;
       load.load_kind = LoadKind::kActivations;
       load.load_address = kSpillBase;
-      load.load_bytes = from_dram ? elements * act_bytes : 0;
+      load.load_bytes = elements * act_bytes;
       load.load_after_stores = true;
       out.push_back(load);
-      if (acts.output_to_dram) {
-        item.store_address = kSpillBase + kSpillStride;
-        item.store_bytes = elements * act_bytes;
-      }
+    }
+    if (acts.output_to_dram) {
+      item.store_address = kSpillBase + kSpillStride;
+      item.store_bytes = elements * act_bytes;
     }
   }
   out.push_back(item);

@@ -5,9 +5,10 @@
 // module drives it.
 //
 // Scratchpad split (a fixed policy, documented in docs/engine.md): half the
-// capacity holds the live activations of the current op; the other half is
-// two equal slots, so the DMA fills one slot while a unit drains the other
-// (double buffering).
+// capacity holds the live activations of the current op; the other half
+// holds streamed weight and KV tiles in flight, each at most a quarter of the
+// capacity (so at least two: double buffering) and at most the size that
+// hides the DMA setup, so more capacity means a deeper prefetch.
 #pragma once
 
 #include <cstdint>
@@ -26,7 +27,8 @@ namespace tritsim {
 // Derived hardware rates every unit agrees on.
 struct HardwareRates {
   uint64_t core_period_ps = 1000;   // core clock period, rounded to 1 ps
-  uint64_t slot_bytes = 0;          // one double-buffer slot
+  uint64_t slot_bytes = 0;          // largest streamed (weight or KV) tile
+  uint64_t stream_bytes = 0;        // region for streamed tiles in flight (>= 2 tiles)
   uint64_t activation_bytes = 0;    // activation region
   double array_ops_per_cycle = 0;   // 2 T F (one add per weight use counts as 2 ops)
   double vector_ops_per_cycle = 0;  // 2 L

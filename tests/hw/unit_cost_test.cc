@@ -256,9 +256,10 @@ TEST_F(VectorUnitCost, AttentionTakesCeilMacsOverLanesPerKvTile) {
   EXPECT_EQ(cost.events.vector_macs, 8u * 64 * uint64_t(kWidth));
 }
 
-// An int8 GEMM on a ternary array: ceil(uses / L), uses = M K N.
+// An int8 GEMM on a ternary array: ceil(uses / L), uses = M K N (one tile:
+// 64 KiB of int8 weights, within this design's streamed-tile cap).
 TEST_F(VectorUnitCost, Int8GemmOnATernaryArrayTakesCeilUsesOverLanes) {
-  constexpr uint64_t M = 3, K = 256, N = 512;
+  constexpr uint64_t M = 3, K = 256, N = 256;
   TraceOp op = Gemm("head", M, N, K);
   op.weights = WeightFormat::kInt8;
   const TileCost cost = OpCost(op);

@@ -90,9 +90,10 @@ TEST_F(TilerTest, Base3GemmWeightTilesAddUpToThePackedMatrix) {
   const auto items = Plan(Gemm("ffn.up", 1, N, K));
   // Arithmetic: K x N trits at 5 per byte = 1 638 400 bytes.
   EXPECT_EQ(WeightBytes(items), K * N / kTritsPerBase3Byte);
-  // A 512 KiB slot holds 2 621 440 trits = 640 columns of K = 4096 (a
-  // multiple of T = 64), so N = 2000 takes ceil(2000 / 640) = 4 tiles.
-  EXPECT_EQ(items.size(), 4u);
+  // Streamed tiles are capped at 64 KiB on this DDR4 design (the transfer
+  // cost floor, docs/engine.md): 327 680 trits = 64 columns of K = 4096 (a
+  // multiple of T = 64), so N = 2000 takes ceil(2000 / 64) = 32 tiles.
+  EXPECT_EQ(items.size(), 32u);
 }
 
 TEST_F(TilerTest, TwoBitGemmWeightTilesAddUpToThePackedMatrix) {
@@ -228,14 +229,15 @@ TEST_F(TilerTest, AttentionTilesSplitTheMacsExactly) {
   }
 }
 
-TEST_F(TilerTest, AttentionStreamsTheWholeCacheAfterThisStepsAppend) {
+// The step's own keys and values are still on chip when attention starts,
+// so streaming the cached context does not wait for their store.
+TEST_F(TilerTest, AttentionStreamsTheWholeCacheWithoutWaitingForThisStepsAppend) {
   UseSramKib(16);
   constexpr uint64_t kContext = 1000, kKvHeads = 2, kVectorBytes = 64;
   const auto items = Plan(Attention(OpKind::kAttnValues, "attn.values", 1, kContext, false));
   EXPECT_EQ(Sum(items, [](const WorkItem& i) { return i.load_bytes; }),
             kKvHeads * kContext * kVectorBytes);
-  EXPECT_TRUE(items.front().load_after_stores);
-  EXPECT_EQ(Count(items, [](const WorkItem& i) { return i.load_after_stores; }), 1u);
+  EXPECT_EQ(Count(items, [](const WorkItem& i) { return i.load_after_stores; }), 0u);
   EXPECT_EQ(Count(items, [](const WorkItem& i) { return i.work.drain; }), 1u);
 }
 
