@@ -27,7 +27,8 @@ Sequencer::Sequencer(sc_core::sc_module_name name, const ArchConfig& arch,
       vector_unit_(vector_unit),
       tiler_(arch, options),
       period_ps_(tiler_.rates().core_period_ps),
-      free_stream_bytes_(tiler_.rates().stream_bytes) {
+      free_stream_bytes_(tiler_.rates().stream_bytes),
+      resource_rates_(RatesOf(arch)) {
   SC_THREAD(IssueThread);
   SC_THREAD(ComputeThread);
 }
@@ -179,8 +180,32 @@ void Sequencer::RunItem(const WorkItem& item) {
   if (item.store_bytes > 0) dma_.PostStore(item.store_address, item.store_bytes);
   AddEvents(run.cost.events, op.events);
   op.events.sram_reads += run.cost.sram_read_accesses;
-  dma_.CountTransferEvents(item.load_bytes, item.store_bytes, op.events);
+  EventCounts transfers;
+  dma_.CountTransferEvents(item.load_bytes, item.store_bytes, transfers);
+  AddEvents(transfers, op.events);
+  AddDemand(item, run, transfers, op.demand);
   if (item.last_of_op) RetireOp(op);
+}
+
+void Sequencer::AddDemand(const WorkItem& item, const TileRun& run, const EventCounts& transfers,
+                          ResourceDemand& d) const {
+  d.dram_bytes += double(item.load_bytes + item.store_bytes);
+  d.decoder_bytes += double(run.cost.events.decoder_bytes);
+  d.array_products += double(run.cost.events.weight_uses);
+  if (item.unit == Unit::kVectorUnit) d.vector_cycles += double(run.cost.cycles);
+  d.sram_accesses +=
+      double(run.cost.sram_read_accesses + transfers.sram_reads + transfers.sram_writes);
+}
+
+// Adds one op instance's demand and bound to its result; the result's
+// binding resource is that of all its instances together.
+void Sequencer::RecordBounds(const OpInFlight& op, OpResult& result) {
+  const ResourceBounds own = BoundsOf(op.demand, resource_rates_);
+  result.bound_cycles += uint64_t(std::ceil(own.max_cycles() - 1e-9));
+  result.demand.Add(op.demand);
+  result.bound_by = BoundsOf(result.demand, resource_rates_).binding;
+  result.regime = RegimeOf(result.bound_by);
+  phase_demand_[int(op.phase)].Add(op.demand);
 }
 
 void Sequencer::RetireOp(OpInFlight& op) {
@@ -191,24 +216,30 @@ void Sequencer::RetireOp(OpInFlight& op) {
   const uint64_t now = NowPs();
   OpResult& result = layers_[op.result_index];
   const uint64_t span_cycles = (now - op.span_start_ps + period_ps_ - 1) / period_ps_;
-  const HardwareRates& rates = tiler_.rates();
-  const double peak =
-      op.unit == Unit::kTreeArray ? rates.array_ops_per_cycle : rates.vector_ops_per_cycle;
-  const double compute_bound = double(op.ops) / peak;
-  const double memory_bound = double(op.dram_bytes) / rates.dram_bytes_per_cycle;
   if (result.cycles == 0 && result.ops == 0) result.start_cycle = op.span_start_ps / period_ps_;
   result.cycles += span_cycles;
   result.ops += op.ops;
   result.dram_bytes += op.dram_bytes;
   AddEvents(op.events, result.events);
-  result.bound_cycles += uint64_t(std::ceil(std::max(compute_bound, memory_bound) - 1e-9));
-  result.regime = compute_bound >= memory_bound ? Regime::kCompute : Regime::kMemory;
+  RecordBounds(op, result);
   total_ops_ += op.ops;
   if (op.phase == Phase::kPrefill) prefill_end_ps_ = now;
   if (op.phase == Phase::kDecode && op.step == 0) first_decode_end_ps_ = now;
   ops_in_flight_.pop_front();
   ++ops_retired_;
   op_retired_.notify(sc_core::SC_ZERO_TIME);
+}
+
+PhaseResult Sequencer::MakePhase(Phase phase, uint64_t cycles, uint64_t tokens) const {
+  PhaseResult p;
+  p.phase = phase;
+  p.cycles = cycles;
+  p.tokens = tokens;
+  p.demand = phase_demand_[int(phase)];
+  const ResourceBounds bounds = BoundsOf(p.demand, resource_rates_);
+  p.bound_by = bounds.binding;
+  p.bound_cycles = uint64_t(std::ceil(bounds.max_cycles() - 1e-9));
+  return p;
 }
 
 void Sequencer::Collect(RunResult& result) const {
@@ -218,9 +249,11 @@ void Sequencer::Collect(RunResult& result) const {
   result.stalls = stalls_;
   result.layers = layers_;
   const uint64_t prefill_cycles = saw_prefill_ ? prefill_end_ps_ / period_ps_ : 0;
-  if (saw_prefill_) result.phases.push_back({Phase::kPrefill, prefill_cycles, prefill_tokens_});
+  if (saw_prefill_)
+    result.phases.push_back(MakePhase(Phase::kPrefill, prefill_cycles, prefill_tokens_));
   if (decode_steps_ > 0) {
-    result.phases.push_back({Phase::kDecode, result.cycles - prefill_cycles, decode_tokens_});
+    result.phases.push_back(
+        MakePhase(Phase::kDecode, result.cycles - prefill_cycles, decode_tokens_));
   }
   result.tokens = decode_tokens_ > 0 ? decode_tokens_ : prefill_tokens_;
   const uint64_t first_ps = saw_prefill_ ? prefill_end_ps_ : first_decode_end_ps_;

@@ -30,6 +30,7 @@
 
 #include "hw/compute_unit.h"
 #include "hw/dma_engine.h"
+#include "mapping/resource_bounds.h"
 #include "mapping/tiler.h"
 #include "results/run_result.h"
 #include "trace/trace_source.h"
@@ -65,6 +66,7 @@ class Sequencer : public sc_core::sc_module {
     Phase phase = Phase::kDecode;
     int64_t step = 0;
     EventCounts events;
+    ResourceDemand demand;
   };
 
   void IssueThread();
@@ -80,6 +82,10 @@ class Sequencer : public sc_core::sc_module {
     return streamed ? std::min(item.load_bytes, tiler_.rates().stream_bytes) : 0;
   }
   void RetireOp(OpInFlight& op);
+  void AddDemand(const WorkItem& item, const TileRun& run, const EventCounts& transfers,
+                 ResourceDemand& demand) const;
+  void RecordBounds(const OpInFlight& op, OpResult& result);
+  PhaseResult MakePhase(Phase phase, uint64_t cycles, uint64_t tokens) const;
   void Charge(uint64_t& bucket);
   void AlignToCycle();
   size_t ResultIndex(const TraceOp& op);
@@ -93,7 +99,8 @@ class Sequencer : public sc_core::sc_module {
   Tiler tiler_;
   uint64_t period_ps_;
 
-  uint64_t free_stream_bytes_;            // room left in the stream region
+  uint64_t free_stream_bytes_;  // room left in the stream region
+  ResourceRates resource_rates_;
   std::deque<WorkItem> loaded_;           // issue -> compute
   std::deque<OpInFlight> ops_in_flight_;  // planned, not yet retired
   int64_t ops_issued_ = 0;
@@ -119,6 +126,7 @@ class Sequencer : public sc_core::sc_module {
   uint64_t decode_tokens_ = 0;
   uint64_t total_ops_ = 0;
   std::vector<OpResult> layers_;
+  ResourceDemand phase_demand_[2];  // indexed by Phase
   std::map<std::tuple<int, int64_t, std::string>, size_t> layer_index_;
 };
 

@@ -59,7 +59,27 @@ EnergyBreakdown LayerEnergy(const RunReport& r, const OpResult& layer) {
 
 std::string Percent(double fraction) { return Fixed(fraction * 100.0, 1) + "%"; }
 
+// Energy no layer carries (leakage, DRAM activates and refreshes).
+double UnattributedJoules(const RunReport& r) {
+  double layers = 0.0;
+  for (const OpResult& layer : r.run.layers) layers += LayerEnergy(r, layer).total_joules();
+  return r.energy.total_joules() - layers;
+}
+
 }  // namespace
+
+PhaseFigures ComputePhaseFigures(const RunReport& r, const PhaseResult& p) {
+  PhaseFigures f;
+  f.seconds = Seconds(p.cycles, r.run);
+  f.tokens_per_second = Ratio(double(p.tokens), f.seconds);
+  for (const OpResult& layer : r.run.layers) {
+    if (layer.op.phase == p.phase) f.joules += LayerEnergy(r, layer).total_joules();
+  }
+  f.joules += UnattributedJoules(r) * Ratio(double(p.cycles), double(r.run.cycles));
+  f.joules_per_token = Ratio(f.joules, double(p.tokens));
+  f.watts = Ratio(f.joules, f.seconds);
+  return f;
+}
 
 Headline ComputeHeadline(const RunReport& r) {
   const RunResult& run = r.run;
@@ -124,12 +144,17 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                  {"area_mm2", r.area.total_mm2()}};
   ordered_json phases = ordered_json::array();
   for (const PhaseResult& p : run.phases) {
-    const double s = Seconds(p.cycles, run);
+    const PhaseFigures f = ComputePhaseFigures(r, p);
     phases.push_back({{"name", PhaseName(p.phase)},
                       {"cycles", p.cycles},
-                      {"seconds", s},
+                      {"seconds", f.seconds},
                       {"tokens", p.tokens},
-                      {"tokens_per_second", Ratio(double(p.tokens), s)}});
+                      {"tokens_per_second", f.tokens_per_second},
+                      {"bound_by", ResourceName(p.bound_by)},
+                      {"bound_cycles", p.bound_cycles},
+                      {"joules", f.joules},
+                      {"joules_per_token", f.joules_per_token},
+                      {"watts", f.watts}});
   }
   j["phases"] = phases;
   j["stalls"] = {{"busy", run.stalls.busy},
@@ -190,6 +215,7 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                       {"intensity_ops_per_byte", layer.intensity()},
                       {"bound_cycles", layer.bound_cycles},
                       {"regime", RegimeName(layer.regime)},
+                      {"bound_by", ResourceName(layer.bound_by)},
                       {"roofline_efficiency", Efficiency(layer)},
                       {"energy_joules", e.total_joules()}});
   }
@@ -201,13 +227,13 @@ std::string RunCsv(const RunReport& r) {
   std::ostringstream out;
   out << "phase,layer,name,kind,tensor,cycles,seconds,ops,dram_bytes,intensity_ops_per_byte,"
          "bound_cycles,regime,roofline_efficiency,energy_joules,arithmetic_joules,sram_joules,"
-         "dram_joules,decoder_joules\n";
+         "dram_joules,decoder_joules,bound_by\n";
   for (const OpResult& layer : r.run.layers) {
     const EnergyBreakdown e = LayerEnergy(r, layer);
     char line[640];
     std::snprintf(
         line, sizeof line,
-        "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g,%.6g,%.6g,%.6g,%.6g\n",
+        "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g,%.6g,%.6g,%.6g,%.6g,%s\n",
         PhaseName(layer.op.phase), static_cast<long long>(layer.op.layer), layer.op.name.c_str(),
         OpKindName(layer.op.kind), TensorClassName(layer.op.tensor),
         static_cast<unsigned long long>(layer.cycles), Seconds(layer.cycles, r.run),
@@ -215,10 +241,20 @@ std::string RunCsv(const RunReport& r) {
         static_cast<unsigned long long>(layer.dram_bytes), layer.intensity(),
         static_cast<unsigned long long>(layer.bound_cycles), RegimeName(layer.regime),
         Efficiency(layer), e.total_joules(), e.arithmetic_joules, e.sram_joules, e.dram_joules,
-        e.decoder_joules);
+        e.decoder_joules, ResourceName(layer.bound_by));
     out << line;
   }
   return out.str();
+}
+
+// One phase: time, throughput, energy and the binding resource.
+void PrintPhase(const RunReport& r, const PhaseResult& p, std::ostream& out) {
+  const PhaseFigures f = ComputePhaseFigures(r, p);
+  out << "    " << PhaseName(p.phase) << (p.phase == Phase::kDecode ? "        " : "       ")
+      << p.cycles << " cycles = " << Time(f.seconds) << ", " << p.tokens
+      << (p.tokens == 1 ? " token, " : " tokens, ") << Fixed(f.tokens_per_second, 2)
+      << " tokens/s, " << Fixed(f.joules_per_token * 1e3, 3) << " mJ/token, " << Fixed(f.watts, 2)
+      << " W; bound by " << ResourceName(p.bound_by) << "\n";
 }
 
 void PrintRunSummary(const RunReport& r, std::ostream& out) {
@@ -233,11 +269,7 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
       << Scaled(run.dram_peak_bytes_per_second, "B/s") << ", ridge "
       << Fixed(Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second), 1) << " op/B\n\n";
   out << "  time            " << run.cycles << " cycles = " << Time(h.seconds) << "\n";
-  for (const PhaseResult& p : run.phases) {
-    out << "    " << PhaseName(p.phase) << (p.phase == Phase::kDecode ? "        " : "       ")
-        << p.cycles << " cycles = " << Time(Seconds(p.cycles, run)) << ", " << p.tokens
-        << " tokens\n";
-  }
+  for (const PhaseResult& p : run.phases) PrintPhase(r, p, out);
   out << "  first token     " << Time(h.time_to_first_token_seconds) << "\n";
   if (h.time_per_output_token_seconds > 0) {
     out << "  per output tok  " << Time(h.time_per_output_token_seconds) << "\n";
@@ -271,14 +303,15 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
   std::stable_sort(top.begin(), top.end(),
                    [](const OpResult* a, const OpResult* b) { return a->cycles > b->cycles; });
   out << "  top layers by time\n";
-  out << "    phase    layer  op               cycles      op/B     regime   of bound\n";
+  out << "    phase    layer  op               cycles      op/B     bound by             of "
+         "bound\n";
   for (size_t i = 0; i < std::min<size_t>(8, top.size()); ++i) {
     const OpResult& l = *top[i];
     char line[256];
-    std::snprintf(line, sizeof line, "    %-8s %5lld  %-16s %10llu %9.1f  %-8s %6.1f%%\n",
+    std::snprintf(line, sizeof line, "    %-8s %5lld  %-16s %10llu %9.1f  %-19s %6.1f%%\n",
                   PhaseName(l.op.phase), static_cast<long long>(l.op.layer), l.op.name.c_str(),
-                  static_cast<unsigned long long>(l.cycles), l.intensity(), RegimeName(l.regime),
-                  Efficiency(l) * 100.0);
+                  static_cast<unsigned long long>(l.cycles), l.intensity(),
+                  ResourceName(l.bound_by), Efficiency(l) * 100.0);
     out << line;
   }
   out << "\n  Model estimates for architecture exploration, not sign-off numbers.\n";

@@ -46,6 +46,19 @@ struct Headline {
 };
 Headline ComputeHeadline(const RunReport& report);
 
+// Per-phase headline figures. Joules: the phase's layers' own energy plus
+// the energy no layer carries (leakage, DRAM activates and refreshes)
+// shared out by the phase's share of the run's cycles, so the phases' joules
+// add up to the run's.
+struct PhaseFigures {
+  double seconds = 0.0;
+  double tokens_per_second = 0.0;
+  double joules = 0.0;
+  double joules_per_token = 0.0;
+  double watts = 0.0;  // average power over the phase
+};
+PhaseFigures ComputePhaseFigures(const RunReport& report, const PhaseResult& phase);
+
 nlohmann::ordered_json RunJson(const RunReport& report);
 std::string RunCsv(const RunReport& report);
 void PrintRunSummary(const RunReport& report, std::ostream& out);

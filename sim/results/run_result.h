@@ -2,6 +2,7 @@
 // units; the energy model and the report layer only read them.
 #pragma once
 
+#include <cstddef>
 #include <cstdint>
 #include <string>
 #include <vector>
@@ -73,6 +74,60 @@ struct DramStats {
 
 enum class Regime { kMemory, kCompute };
 
+// The resources that bound an op (sim/mapping/resource_bounds.h). Names in
+// reports: ResourceName().
+enum class Resource {
+  kDramBandwidth,
+  kRequestConcurrency,
+  kTritDecoder,
+  kTreeArray,
+  kVectorUnit,
+  kSramPorts
+};
+inline constexpr size_t kResourceCount = 6;
+
+// "dram_bandwidth", "request_concurrency", "trit_decoder", "tree_array",
+// "vector_unit", "sram_ports".
+inline const char* ResourceName(Resource r) {
+  switch (r) {
+    case Resource::kDramBandwidth:
+      return "dram_bandwidth";
+    case Resource::kRequestConcurrency:
+      return "request_concurrency";
+    case Resource::kTritDecoder:
+      return "trit_decoder";
+    case Resource::kTreeArray:
+      return "tree_array";
+    case Resource::kVectorUnit:
+      return "vector_unit";
+    case Resource::kSramPorts:
+      return "sram_ports";
+  }
+  return "?";
+}
+
+// Memory-side resources make an op memory-bound; the others compute-bound.
+inline Regime RegimeOf(Resource r) {
+  return r == Resource::kDramBandwidth || r == Resource::kRequestConcurrency ? Regime::kMemory
+                                                                             : Regime::kCompute;
+}
+
+// What work demands of each resource (summed over ops, steps or phases).
+struct ResourceDemand {
+  double dram_bytes = 0;      // read + written
+  double decoder_bytes = 0;   // packed base-3 bytes expanded
+  double array_products = 0;  // activation x weight products on the tree array
+  double vector_cycles = 0;   // the vector unit's own cycles (its cost model)
+  double sram_accesses = 0;   // scratchpad bank accesses, reads + writes
+  void Add(const ResourceDemand& o) {
+    dram_bytes += o.dram_bytes;
+    decoder_bytes += o.decoder_bytes;
+    array_products += o.array_products;
+    vector_cycles += o.vector_cycles;
+    sram_accesses += o.sram_accesses;
+  }
+};
+
 // One trace op as it ran.
 struct OpResult {
   TraceOp op;
@@ -80,8 +135,10 @@ struct OpResult {
   uint64_t cycles = 0;        // core cycles from the op's start to its end
   uint64_t ops = 0;           // arithmetic ops (2 per multiply-equivalent+add, common practice)
   uint64_t dram_bytes = 0;    // read + written on behalf of this op
-  uint64_t bound_cycles = 0;  // roofline lower bound max(ops/peak, bytes/bandwidth)
-  Regime regime = Regime::kMemory;  // which term of the bound dominates
+  uint64_t bound_cycles = 0;  // sum over instances of the largest resource bound
+  ResourceDemand demand;      // summed over instances
+  Resource bound_by = Resource::kDramBandwidth;  // binding resource of `demand`
+  Regime regime = Regime::kMemory;               // RegimeOf(bound_by)
   // Energy events of this op's tiles (DRAM activates and refreshes are not
   // attributed to ops: they stay in RunResult::events only).
   EventCounts events;
@@ -89,9 +146,14 @@ struct OpResult {
 };
 
 struct PhaseResult {
+  PhaseResult() = default;
+  PhaseResult(Phase p, uint64_t c, uint64_t t) : phase(p), cycles(c), tokens(t) {}
   Phase phase = Phase::kDecode;
   uint64_t cycles = 0;
-  uint64_t tokens = 0;  // tokens produced or consumed (batch x tokens)
+  uint64_t tokens = 0;    // tokens produced or consumed (batch x tokens)
+  ResourceDemand demand;  // of every op of the phase
+  Resource bound_by = Resource::kDramBandwidth;
+  uint64_t bound_cycles = 0;  // the binding resource's cycles for `demand`
 };
 
 struct RunResult {

@@ -10,6 +10,7 @@
 
 #include <algorithm>
 #include <cstdint>
+#include <set>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -18,6 +19,7 @@
 #include "config/energy_table.h"
 #include "energy/area_model.h"
 #include "energy/energy_model.h"
+#include "mapping/resource_bounds.h"
 #include "model/trace_builder.h"
 #include "run/simulation.h"
 
@@ -175,7 +177,7 @@ TEST_F(ReportTest, CsvHasOneRowPerOpWithTheHeadersFieldCount) {
   ASSERT_EQ(lines.size(), 1 + run_.layers.size());
   EXPECT_EQ(lines[0].rfind("phase,layer,name,", 0), 0u) << lines[0];
   const size_t fields = Fields(lines[0]);
-  EXPECT_EQ(fields, 18u);
+  EXPECT_EQ(fields, 19u);  // 18 figures, then bound_by
   for (size_t i = 1; i < lines.size(); ++i) {
     EXPECT_EQ(Fields(lines[i]), fields) << lines[i];
     EXPECT_NE(lines[i].find(run_.layers[i - 1].op.name), std::string::npos) << lines[i];
@@ -237,6 +239,36 @@ TEST(RunReportOfASimulation, TotalsAddUpOverPhasesAndStalls) {
       double(total));
   EXPECT_EQ(j.at("layers").size(), run.layers.size());
   EXPECT_EQ(Lines(RunCsv(report)).size(), 1 + run.layers.size());
+  // Per-phase energy is a partition of the run's (docs/report-format.md):
+  // the phases' joules add up to the total, and watts = joules / seconds.
+  const double joules = phases[0].at("joules").get<double>() + phases[1].at("joules").get<double>();
+  EXPECT_NEAR(joules, j.at("totals").at("energy_joules").get<double>(), 1e-12);
+  for (const auto& p : phases) {
+    EXPECT_NEAR(p.at("watts").get<double>(),
+                p.at("joules").get<double>() / p.at("seconds").get<double>(), 1e-9);
+    EXPECT_GE(p.at("cycles").get<uint64_t>(), p.at("bound_cycles").get<uint64_t>())
+        << "a phase never beats its binding resource";
+  }
+}
+
+// The binding resource's name is one of the six the reports promise, and no
+// op beats the ceiling of any resource (every resource is a ceiling).
+TEST(RunReportOfASimulation, EveryOpNamesItsBindingResourceAndBeatsNoCeiling) {
+  const ArchConfig arch = DefaultArch();
+  WorkloadConfig workload;
+  workload.prefill_tokens = 16;
+  workload.decode_tokens = 2;
+  auto trace = BuildTrace(TinyModel(), workload);
+  const RunResult run = RunSimulation(arch, *trace, SimOptions{});
+  const std::set<std::string> names = {"dram_bandwidth", "request_concurrency", "trit_decoder",
+                                       "tree_array",     "vector_unit",         "sram_ports"};
+  const ResourceRates rates = RatesOf(arch);
+  for (const OpResult& layer : run.layers) {
+    EXPECT_EQ(names.count(ResourceName(layer.bound_by)), 1u) << layer.op.name;
+    const ResourceBounds bounds = BoundsOf(layer.demand, rates);
+    for (double cycles : bounds.cycles) EXPECT_GE(double(layer.cycles) + 1.0, cycles);
+    EXPECT_EQ(layer.regime, RegimeOf(layer.bound_by));
+  }
 }
 
 }  // namespace
