@@ -1,12 +1,15 @@
 #include "report/inspect_report.h"
 
+#include <cmath>
 #include <cstdio>
 #include <nlohmann/json.hpp>
 #include <string>
 
+#include "common/error.h"
 #include "config/dram_presets.h"
 #include "mapping/tiler.h"
 #include "model/model_stats.h"
+#include "report/workload_bounds.h"
 
 namespace tritsim {
 namespace {
@@ -50,6 +53,55 @@ std::string G(double v) {
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.4g", v);
   return buf;
+}
+
+// Tokens/s of each resource; null for a resource the phase does not use.
+nlohmann::ordered_json PerResourceJson(const PhaseBounds& phase) {
+  nlohmann::ordered_json j;
+  for (size_t r = 0; r < kResourceCount; ++r) {
+    const double v = phase.tokens_per_second[r];
+    j[ResourceName(Resource(r))] = std::isfinite(v) ? nlohmann::ordered_json(v) : nullptr;
+  }
+  return j;
+}
+
+nlohmann::ordered_json BoundsJson(const WorkloadBounds& b) {
+  nlohmann::ordered_json j = nlohmann::ordered_json::object();
+  if (b.decode.present) {
+    j["decode_tokens_per_second"] = PerResourceJson(b.decode);
+    j["decode_bound_by"] = ResourceName(b.decode.bound_by);
+  }
+  if (b.prefill.present) {
+    j["prefill_tokens_per_second"] = PerResourceJson(b.prefill);
+    j["prefill_bound_by"] = ResourceName(b.prefill.bound_by);
+  }
+  return j;
+}
+
+// "  decode bounds   dram_bandwidth 41.2, ... tokens/s; bound by X"
+void PrintPhaseBounds(const nlohmann::ordered_json& bounds, const std::string& phase,
+                      std::ostream& out) {
+  if (!bounds.contains(phase + "_bound_by")) return;
+  out << "  " << phase << (phase == "decode" ? " bounds  " : " bounds ");
+  const char* separator = " ";
+  for (const auto& [name, value] : bounds[phase + "_tokens_per_second"].items()) {
+    out << separator << name << " " << (value.is_null() ? "-" : G(value.get<double>()));
+    separator = ", ";
+  }
+  out << " tokens/s; bound by " << bounds[phase + "_bound_by"].get<std::string>() << "\n";
+}
+
+// The tree array's roofline verdict, corrected by the binding resource of the
+// workload's decode when the bounds name one.
+std::string RidgeVerdict(const nlohmann::ordered_json& j) {
+  const auto& a = j["arch"];
+  const bool memory =
+      a["decode_intensity_ops_per_byte"].get<double>() < a["ridge_ops_per_byte"].get<double>();
+  std::string verdict = memory ? "memory-bound on the tree array's roofline" : "compute-bound";
+  if (j["bounds"].contains("decode_bound_by")) {
+    verdict += "; decode is bound by " + j["bounds"]["decode_bound_by"].get<std::string>();
+  }
+  return verdict;
 }
 
 }  // namespace
@@ -99,8 +151,19 @@ nlohmann::ordered_json InspectJson(const InspectInputs& in) {
                {"sram_bytes", double(in.arch.sram.capacity_kib) * 1024.0}};
   // Decode at batch 1 reads every weight once per token: its intensity.
   j["arch"]["decode_intensity_ops_per_byte"] = stats.ops_per_token / storage.total();
-  j["arch"]["decode_tokens_per_second_bound"] =
-      std::min(peak_ops / stats.ops_per_token, peak_bytes / storage.total());
+  WorkloadBounds bounds;
+  try {
+    bounds = BoundsOfWorkload(in.model, in.arch, in.workload);
+  } catch (const Error& e) {  // the workload cannot run here: say why, keep the rest
+    if (e.code() != ExitCode::kSimFailed) throw;
+    j["bounds"] = {{"unavailable", e.what()}};
+    return j;
+  }
+  j["bounds"] = BoundsJson(bounds);
+  if (bounds.decode.present) {
+    j["arch"]["decode_tokens_per_second_bound"] =
+        bounds.decode.tokens_per_second[size_t(bounds.decode.bound_by)];
+  }
   return j;
 }
 
@@ -130,13 +193,17 @@ void PrintInspect(const InspectInputs& in, std::ostream& out) {
       << " GB/s\n";
   out << "  ridge point     " << G(a["ridge_ops_per_byte"].get<double>())
       << " op/B; batch-1 decode runs at " << G(a["decode_intensity_ops_per_byte"].get<double>())
-      << " op/B ("
-      << (a["decode_intensity_ops_per_byte"].get<double>() < a["ridge_ops_per_byte"].get<double>()
-              ? "memory-bound"
-              : "compute-bound")
-      << ")\n";
-  out << "  decode bound    " << G(a["decode_tokens_per_second_bound"].get<double>())
-      << " tokens/s at batch 1 (roofline, weights only)\n";
+      << " op/B (" << RidgeVerdict(j) << ")\n";
+  if (a.contains("decode_tokens_per_second_bound")) {
+    out << "  decode bound    " << G(a["decode_tokens_per_second_bound"].get<double>())
+        << " tokens/s for this workload (every resource a ceiling)\n";
+  }
+  if (j["bounds"].contains("unavailable")) {
+    out << "  bounds          unavailable: " << j["bounds"]["unavailable"].get<std::string>()
+        << "\n";
+  }
+  PrintPhaseBounds(j["bounds"], "prefill", out);
+  PrintPhaseBounds(j["bounds"], "decode", out);
   out << "  Model estimates for architecture exploration, not sign-off numbers.\n";
 }
 

@@ -1,0 +1,48 @@
+#!/usr/bin/env bash
+# Every resource is a ceiling (Williams et al. 2009 for DRAM bandwidth, Little
+# 1961 for request concurrency; the others from each unit's own peak rate):
+# for every demo model on every demo design, `inspect` names a bound for each
+# resource and the binding one, and `run` of the same workload never beats it.
+# Two layers of each model keep this quick; the bound must hold whatever the size.
+set -uo pipefail
+BIN=$1
+SRC=$2
+OUT=$(mktemp -d)
+trap 'rm -rf "$OUT"' EXIT
+cd "$SRC"
+failed=0
+check() {  # model arch extra-args...
+  local model=$1 arch=$2
+  shift 2
+  local args=(--model "models/$model.yaml" --arch "configs/$arch.yaml" --set model.layers=2 "$@")
+  "$BIN" inspect "${args[@]}" --json "$OUT/i.json" >/dev/null || { echo "FAIL inspect $model $arch"; failed=1; return; }
+  "$BIN" run "${args[@]}" -q --json "$OUT/r.json" || { echo "FAIL run $model $arch"; failed=1; return; }
+  /usr/bin/python3 - "$OUT/i.json" "$OUT/r.json" "$model $arch $*" <<'PY' || failed=1
+import json, sys
+names = {"dram_bandwidth", "request_concurrency", "trit_decoder", "tree_array", "vector_unit", "sram_ports"}
+inspect, run, label = json.load(open(sys.argv[1])), json.load(open(sys.argv[2])), sys.argv[3]
+bounds = inspect["bounds"]
+ok = True
+for phase in [p for p in run["phases"]]:
+    name = phase["name"]
+    per = bounds[name + "_tokens_per_second"]
+    assert set(per) == names, (label, sorted(per))
+    binding = bounds[name + "_bound_by"]
+    finite = {k: v for k, v in per.items() if v is not None}
+    assert binding == min(finite, key=finite.get), (label, binding)
+    if phase["tokens_per_second"] > per[binding] * (1 + 1e-9):
+        print(f"FAIL {label}: {name} runs at {phase['tokens_per_second']:.3f} tokens/s, "
+              f"beating the {binding} bound {per[binding]:.3f}")
+        ok = False
+sys.exit(0 if ok else 1)
+PY
+}
+for model in wren-0.7b meadowlark-3b condor-13b; do
+  for arch in finch-phone-lpddr5 heron-edge-ddr4 osprey-card-hbm2e ideal-memory; do
+    check "$model" "$arch" --decode 2 --context 128
+  done
+done
+check meadowlark-3b heron-edge-ddr4 --prefill 32 --decode 0
+check wren-0.7b osprey-card-hbm2e --decode 2 --batch 8 --context 64
+[ "$failed" -eq 0 ] && echo "run never beat an inspect bound"
+exit "$failed"
