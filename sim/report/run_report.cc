@@ -275,7 +275,7 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
   for (const PhaseResult& p : run.phases) {
     out << "    " << PhaseName(p.phase) << (p.phase == Phase::kDecode ? "        " : "       ")
         << p.cycles << " cycles = " << Time(Seconds(p.cycles, run)) << ", " << p.tokens
-        << " tokens\n";
+        << (p.tokens == 1 ? " token\n" : " tokens\n");
   }
   out << "  first token     " << Time(h.time_to_first_token_seconds) << "\n";
   if (h.time_per_output_token_seconds > 0) {
