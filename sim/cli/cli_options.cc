@@ -65,7 +65,13 @@ std::vector<std::string> LongNames(const po::options_description& desc) {
 
 std::string UnknownOption(const po::unknown_option& e, const po::options_description& desc) {
   const std::string name = e.get_option_name();
-  const std::string near = NearestKey(name, LongNames(desc));
+  const std::vector<std::string> names = LongNames(desc);
+  // A prefix of exactly one option names it (prefixes are refused, not guessed).
+  std::vector<std::string> extended;
+  for (const std::string& n : names) {
+    if (n.rfind(name, 0) == 0) extended.push_back(n);
+  }
+  const std::string near = extended.size() == 1 ? extended.front() : NearestKey(name, names);
   return "unrecognised option '" + name + "'" +
          (near.empty() ? "" : "; did you mean '" + near + "'?");
 }
@@ -94,15 +100,15 @@ void SplitOverrides(const std::vector<std::string>& raw, ConfigOverrides& arch,
     const std::string key = Trim(text.substr(0, eq));
     const std::string value = eq == std::string::npos ? "" : Trim(text.substr(eq + 1));
     if (eq == std::string::npos || key.empty() || value.empty()) {
-      throw UsageError("--set '" + text + "': expected KEY=VALUE, e.g. arch.array.trees=128");
+      throw UsageError("--set " + text + ": expected KEY=VALUE, e.g. arch.array.trees=128");
     }
     if (key.rfind("arch.", 0) == 0) {
       arch.push_back({key.substr(5), value});
     } else if (key.rfind("model.", 0) == 0) {
       model.push_back({key.substr(6), value});
     } else {
-      throw UsageError("--set '" + text + "': KEY must start with 'arch.' or 'model.', got '" +
-                       key + "'");
+      throw UsageError("--set " + text + ": KEY must start with 'arch.' or 'model.', got '" + key +
+                       "'");
     }
   }
 }
