@@ -19,6 +19,7 @@
 #include "model/trace_builder.h"
 #include "report/inspect_report.h"
 #include "report/plots.h"
+#include "report/resolved_config.h"
 #include "report/run_report.h"
 #include "run/simulation.h"
 #include "trace/trace_reader.h"
@@ -62,6 +63,7 @@ std::string MainUsage() {
          "  run       simulate a workload on a design point and report it\n"
          "  sweep     run many design points (see tritsim sweep --help)\n"
          "  compare   run a study's named variants side by side against a reference\n"
+         "  diff      compare two run reports: totals, phases, op classes, config\n"
          "  datapath  check the bit-exact datapath (packing, adder trees, accumulator)\n"
          "\n"
          "Results are model estimates for architecture exploration, not sign-off numbers.\n";
@@ -90,7 +92,14 @@ int InspectCommand(const Args& args) {
   ValidateWorkload(in.workload, model);
   WarnAccumulatorWidth(arch, model);
   const InspectInputs inputs{model, arch, in.workload};
-  if (!json_path.empty()) WriteFileAtomically(json_path, JsonText(InspectJson(inputs)));
+  if (!json_path.empty()) {
+    nlohmann::ordered_json resolved = {{"model", ResolvedModelJson(model)},
+                                       {"arch", ResolvedArchJson(arch)},
+                                       {"workload", ResolvedWorkloadJson(in.workload)}};
+    const nlohmann::ordered_json doc =
+        WithOrigin(InspectJson(inputs), ProvenanceJson(RecordedCommand("inspect", args)), resolved);
+    WriteFileAtomically(json_path, JsonText(doc));
+  }
   PrintInspect(inputs, std::cout);
   return 0;
 }
@@ -109,7 +118,7 @@ int TraceCommand(const Args& args) {
   }
   po::variables_map vm;
   ParseCommandLine("trace", args, desc, vm);
-  if (out_path.empty()) throw UsageError("tritsim trace: --out FILE is required");
+  if (out_path.empty()) throw UsageError("trace: --out FILE is required");
   CheckOutputPaths({{"--out", out_path, OutputKind::kFile}});
   const ModelConfig model = LoadModel(in);
   ValidateWorkload(in.workload, model);
@@ -145,16 +154,53 @@ void CheckWeightsResident(const ModelConfig& model, const ArchConfig& arch) {
 // The trace to simulate: generated from the model (checking its workload and
 // --weights-resident), or replayed from --trace. Sets `ops_per_step` for the
 // progress line (0 for a replayed trace: learned as it runs).
-std::unique_ptr<TraceSource> OpenRunTrace(const InputOptions& in, const std::string& trace_path,
-                                          const ArchConfig& arch, const SimOptions& options,
-                                          uint64_t& ops_per_step) {
-  if (!trace_path.empty()) return OpenTraceFile(trace_path);
-  const ModelConfig model = LoadModel(in);
+// The trace to simulate: generated from the resolved model (checking its
+// workload and --weights-resident), or replayed from the trace file. Sets
+// `ops_per_step` for the progress line (0 for a replayed trace: learned as
+// it runs).
+std::unique_ptr<TraceSource> OpenRunTrace(const ResolvedRun& in, uint64_t& ops_per_step) {
+  if (!in.trace.empty()) return OpenTraceFile(in.trace);
+  const ModelConfig& model = *in.model;
   ValidateWorkload(in.workload, model);
-  WarnAccumulatorWidth(arch, model);
-  if (options.weights_resident) CheckWeightsResident(model, arch);
+  WarnAccumulatorWidth(in.arch, model);
+  if (in.weights_resident) CheckWeightsResident(model, in.arch);
   ops_per_step = OpsPerStep(model);
   return BuildTrace(model, in.workload);
+}
+
+// The run's inputs from the command line (the trace is opened later).
+ResolvedRun ResolveRunInputs(const InputOptions& in, const std::string& trace_path,
+                             bool weights_resident) {
+  ResolvedRun run;
+  run.arch = LoadArch(in);
+  if (trace_path.empty()) run.model = LoadModel(in);
+  run.workload = in.workload;
+  run.trace = trace_path;
+  run.weights_resident = weights_resident;
+  return run;
+}
+
+// Refuses flag combinations that contradict each other.
+void CheckRunFlags(const InputOptions& in, const std::string& trace_path, bool weights_resident,
+                   const std::string& from_report) {
+  const bool inputs_given = in.workload_given || !in.model_path.empty() || !in.arch_path.empty() ||
+                            !in.overrides.empty() || !trace_path.empty() || weights_resident;
+  if (!from_report.empty() && inputs_given) {
+    throw UsageError(
+        "run: --from-report takes the model, design, workload and trace from the report; do "
+        "not combine it with --model, --arch, --set, --trace, --weights-resident or workload "
+        "options");
+  }
+  if (!trace_path.empty() && (in.workload_given || !in.model_path.empty())) {
+    throw UsageError(
+        "run: --trace fixes the model and workload; do not combine it with "
+        "--model or workload options");
+  }
+  if (!trace_path.empty() && weights_resident) {
+    throw UsageError(
+        "run: --weights-resident needs the model to check that its weights fit the "
+        "scratchpad; use --model instead of --trace");
+  }
 }
 
 // Simulates with a progress line on stderr when `show_progress`.
@@ -167,8 +213,12 @@ RunResult SimulateRun(const ArchConfig& arch, TraceSource& source, SimOptions op
   return RunSimulation(arch, source, options);
 }
 
-void WriteRunOutputs(const RunOutputs& out, const RunReport& report) {
-  if (!out.json.empty()) WriteFileAtomically(out.json, JsonText(RunJson(report)));
+void WriteRunOutputs(const RunOutputs& out, const RunReport& report,
+                     const nlohmann::ordered_json& provenance,
+                     const nlohmann::ordered_json& resolved) {
+  if (!out.json.empty()) {
+    WriteFileAtomically(out.json, JsonText(WithOrigin(RunJson(report), provenance, resolved)));
+  }
   if (!out.csv.empty()) WriteFileAtomically(out.csv, RunCsv(report));
   if (!out.plots_dir.empty()) WriteRunPlots(out.plots_dir, report.run, report.energy);
 }
@@ -178,6 +228,7 @@ void WriteRunOutputs(const RunOutputs& out, const RunReport& report) {
 int RunCommand(const Args& args) {
   InputOptions in;
   std::string trace_path;
+  std::string from_report;
   RunOutputs out;
   SimOptions options;
   bool quiet = false;
@@ -186,7 +237,10 @@ int RunCommand(const Args& args) {
   AddInputOptions(desc, in, true);
   desc.add_options()("trace", po::value(&trace_path)->value_name("FILE"),
                      "replay a saved trace instead of generating one from --model")(
-      "json", po::value(&out.json)->value_name("FILE"), "write the full report as JSON")(
+      "from-report", po::value(&from_report)->value_name("RUN.json"),
+      "re-run exactly the point of a run JSON, from its resolved section (model or trace, "
+      "design, workload, --weights-resident)")("json", po::value(&out.json)->value_name("FILE"),
+                                               "write the full report as JSON")(
       "csv", po::value(&out.csv)->value_name("FILE"), "write one row per layer op as CSV")(
       "plots", po::value(&out.plots_dir)->value_name("DIR"),
       "write roofline, stall and energy plots (SVG + data + gnuplot script)")(
@@ -199,6 +253,7 @@ int RunCommand(const Args& args) {
   if (WantsHelp(args)) {
     PrintHelp(
         "usage: tritsim run [--model FILE | --trace FILE] [--arch FILE] [workload options]\n"
+        "       tritsim run --from-report RUN.json\n"
         "                   [--json FILE] [--csv FILE] [--plots DIR] [--vcd FILE]\n"
         "On a terminal, a progress line (step, share done, simulated time, ETA) shows on stderr.",
         desc);
@@ -207,32 +262,28 @@ int RunCommand(const Args& args) {
   po::variables_map vm;
   ParseCommandLine("run", args, desc, vm);
   FinishInputOptions(vm, in);
-  if (!trace_path.empty() && (in.workload_given || !in.model_path.empty())) {
-    throw UsageError(
-        "tritsim run: --trace fixes the model and workload; do not combine it with "
-        "--model or workload options");
-  }
-  if (!trace_path.empty() && options.weights_resident) {
-    throw UsageError(
-        "tritsim run: --weights-resident needs the model to check that its weights fit the "
-        "scratchpad; use --model instead of --trace");
-  }
+  CheckRunFlags(in, trace_path, options.weights_resident, from_report);
   // Before anything is simulated: a typo in an output path must not cost the run.
   CheckOutputPaths({{"--json", out.json, OutputKind::kFile},
                     {"--csv", out.csv, OutputKind::kFile},
                     {"--plots", out.plots_dir, OutputKind::kFolder},
                     {"--vcd", options.vcd_path, OutputKind::kFile}});
-  const ArchConfig arch = LoadArch(in);
+  ResolvedRun inputs = from_report.empty()
+                           ? ResolveRunInputs(in, trace_path, options.weights_resident)
+                           : LoadResolvedRun(from_report);
+  options.weights_resident = inputs.weights_resident;
   // Resolved before running, so a bad energy table is rejected at once.
-  const EnergyTable table = ResolveEnergyTable(arch.energy, arch.dram.preset);
+  const EnergyTable table = ResolveEnergyTable(inputs.arch.energy, inputs.arch.dram.preset);
   uint64_t ops_per_step = 0;
-  std::unique_ptr<TraceSource> source = OpenRunTrace(in, trace_path, arch, options, ops_per_step);
-  const WorkloadConfig workload = source->header().workload;
+  std::unique_ptr<TraceSource> source = OpenRunTrace(inputs, ops_per_step);
+  inputs.workload = source->header().workload;
+  const ArchConfig& arch = inputs.arch;
   const RunResult run = SimulateRun(arch, *source, options, WantsProgressLine(quiet), ops_per_step);
   const EnergyBreakdown energy = ComputeEnergyWithTable(arch, table, run);
   const AreaBreakdown area = EstimateArea(arch);
-  const RunReport report{arch, workload, run, energy, area, table};
-  WriteRunOutputs(out, report);
+  const RunReport report{arch, inputs.workload, run, energy, area, table};
+  WriteRunOutputs(out, report, ProvenanceJson(RecordedCommand("run", args)),
+                  ResolvedRunJson(inputs));
   if (!quiet) PrintRunSummary(report, std::cout);
   return 0;
 }

@@ -12,6 +12,7 @@
 #include <sstream>
 #include <thread>
 
+#include "cli/cli_options.h"
 #include "cli/commands.h"
 #include "common/atomic_file.h"
 #include "common/error.h"
@@ -53,37 +54,22 @@ void AddOptions(po::options_description& d, CompareArgs& a) {
   d.add_options()("help,h", "show this help")(
       "out", po::value(&a.out)->value_name("DIR"),
       "output folder (default: STUDY-NAME.study in the current folder)")(
-      "jobs", po::value(&a.jobs)->value_name("N"),
-      "variants run at once (default: the number of hardware threads)")(
       "no-plots", po::bool_switch(&a.no_plots), "skip the gnuplot SVGs")(
       "quiet,q", po::bool_switch(&a.quiet), "no table on stdout, no summary on stderr");
+  AddIntegerOption(d, "jobs", 1, a.jobs,
+                   "variants run at once (default: the number of hardware threads)");
 }
 
 void Parse(const Args& args, const po::options_description& desc, CompareArgs& a) {
-  try {
-    po::options_description all;
-    all.add(desc);
-    all.add_options()("input", po::value(&a.inputs)->composing(), "the study file");
-    po::positional_options_description pos;
-    pos.add("input", -1);
-    po::variables_map vm;
-    po::store(po::command_line_parser(args).options(all).positional(pos).run(), vm);
-    po::notify(vm);
-  } catch (const po::error& e) {
-    throw UsageError(std::string("tritsim compare: ") + e.what() + " (see tritsim compare --help)");
-  }
+  po::options_description all;
+  all.add(desc);
+  all.add_options()("input", po::value(&a.inputs)->composing(), "the study file");
+  po::variables_map vm;
+  ParseCommandLine("compare", args, all, vm, "input", -1);
   if (a.inputs.size() != 1) {
-    throw UsageError("tritsim compare: expected one STUDY.yaml, got " +
-                     std::to_string(a.inputs.size()) + " (see tritsim compare --help)");
+    throw UsageError("compare: expected one STUDY.yaml, got " + std::to_string(a.inputs.size()) +
+                     " (see tritsim compare --help)");
   }
-  if (a.jobs < 0) throw UsageError("--jobs " + std::to_string(a.jobs) + ": must be at least 1");
-}
-
-std::string SelfPath() {
-  std::error_code ec;
-  const fs::path p = fs::read_symlink("/proc/self/exe", ec);
-  if (ec) throw Error(ExitCode::kInternal, "cannot find the tritsim binary (/proc/self/exe)");
-  return p.string();
 }
 
 // The journal row of each variant (by id), checked ok; throws kSimFailed

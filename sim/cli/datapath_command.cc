@@ -38,11 +38,11 @@ void AddOptions(po::options_description& d, DatapathArgs& a) {
       "architecture / design point (YAML); default: the embedded demo design")(
       "set", po::value(&a.in.overrides)->value_name("arch.KEY=VALUE")->composing(),
       "override one architecture key, e.g. arch.array.accumulator_bits=16 (repeatable)")(
-      "m", po::value(&a.shape.m)->value_name("M"), "activation rows (default 8)")(
-      "k", po::value(&a.shape.k)->value_name("K"), "reduction depth (default 2048)")(
-      "n", po::value(&a.shape.n)->value_name("N"), "output columns (default 256)")(
-      "seed", po::value(&a.seed)->value_name("S"), "random seed, >= 0 (default 1)")(
       "json", po::value(&a.json_path)->value_name("FILE"), "write the report as JSON");
+  AddIntegerOption(d, "m", 0, a.shape.m, "activation rows (default 8)");
+  AddIntegerOption(d, "k", 0, a.shape.k, "reduction depth (default 2048)");
+  AddIntegerOption(d, "n", 0, a.shape.n, "output columns (default 256)");
+  AddIntegerOption(d, "seed", 0, a.seed, "random seed, >= 0 (default 1)");
 }
 
 void Validate(const DatapathArgs& a) {

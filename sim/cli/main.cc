@@ -5,10 +5,12 @@
 #include <iostream>
 #include <map>
 #include <string>
+#include <vector>
 
 #include "cli/commands.h"
 #include "common/error.h"
 #include "common/interrupt.h"
+#include "config/sweep_file.h"
 
 namespace {
 
@@ -23,8 +25,20 @@ const std::map<std::string, Command>& Commands() {
       {"inspect", tritsim::InspectCommand},   {"trace", tritsim::TraceCommand},
       {"run", tritsim::RunCommand},           {"sweep", tritsim::SweepCommand},
       {"datapath", tritsim::DatapathCommand}, {"compare", tritsim::CompareCommand},
+      {"diff", tritsim::DiffCommand},
   };
   return commands;
+}
+
+// "unknown command 'rnu'; did you mean 'run'? ..." listing every command.
+std::string UnknownCommand(const std::string& name) {
+  std::vector<std::string> names;
+  for (const auto& entry : Commands()) names.push_back(entry.first);
+  const std::string near = tritsim::NearestKey(name, names);
+  std::string list;
+  for (const std::string& n : names) list += (list.empty() ? "" : ", ") + n;
+  return "unknown command '" + name + "'" + (near.empty() ? "" : "; did you mean '" + near + "'?") +
+         "; commands: " + list + " (tritsim --help)";
 }
 
 int Dispatch(int argc, char** argv) {
@@ -39,9 +53,7 @@ int Dispatch(int argc, char** argv) {
   }
   auto it = Commands().find(name);
   if (it == Commands().end()) {
-    throw tritsim::UsageError(
-        "unknown command '" + name +
-        "'; commands: inspect, trace, run, sweep, compare, datapath (tritsim --help)");
+    throw tritsim::UsageError(UnknownCommand(name));
   }
   return it->second(tritsim::Args(argv + 2, argv + argc));
 }

@@ -11,6 +11,7 @@
 #include <iostream>
 #include <thread>
 
+#include "cli/cli_options.h"
 #include "cli/commands.h"
 #include "common/atomic_file.h"
 #include "common/error.h"
@@ -72,8 +73,6 @@ void AddOptions(po::options_description& d, SweepArgs& a) {
   d.add_options()("help,h", "show this help")(
       "out", po::value(&a.out)->value_name("CSV"),
       "result CSV (one row per point); its per-point JSON go to CSV.points/")(
-      "jobs", po::value(&a.jobs)->value_name("N"),
-      "points run at once (default: the number of hardware threads)")(
       "resume", po::bool_switch(&a.resume), "continue --out: run only points missing from it")(
       "dry-run", po::bool_switch(&a.dry_run), "list the points (id and values); run nothing")(
       "shard", po::value(&a.shard)->value_name("I/N"),
@@ -89,35 +88,22 @@ void AddOptions(po::options_description& d, SweepArgs& a) {
       "Pareto front of a result CSV, e.g. max:tokens_per_second,min:joules_per_token")(
       "slurm", po::value(&a.slurm)->value_name("DIR"),
       "write a Slurm job array (sweep.sbatch, merge.sbatch, submit.sh) into DIR")(
-      "tasks", po::value(&a.tasks)->value_name("N"),
-      "Slurm array tasks (default: min(16, points))")(
       "partition", po::value(&a.partition)->value_name("P"), "Slurm partition")(
       "time-limit", po::value(&a.time_limit)->value_name("T"), "Slurm time limit per task")(
       "mem-per-task", po::value(&a.mem)->value_name("M"), "Slurm memory per task, e.g. 2G");
+  AddIntegerOption(d, "jobs", 1, a.jobs,
+                   "points run at once (default: the number of hardware threads)");
+  AddIntegerOption(d, "tasks", 1, a.tasks, "Slurm array tasks (default: min(16, points))");
 }
 
 // Parses `args` with `desc` plus the hidden positional inputs into a.inputs.
 void Parse(const std::string& command, const Args& args, const po::options_description& desc,
            SweepArgs& a) {
-  try {
-    po::options_description all;
-    all.add(desc);
-    all.add_options()("input", po::value(&a.inputs)->composing(), "positional inputs");
-    po::positional_options_description pos;
-    pos.add("input", -1);
-    po::variables_map vm;
-    po::store(po::command_line_parser(args).options(all).positional(pos).run(), vm);
-    po::notify(vm);
-  } catch (const po::error& e) {
-    throw UsageError("tritsim " + command + ": " + e.what() + " (see tritsim sweep --help)");
-  }
-}
-
-std::string SelfPath() {
-  std::error_code ec;
-  const fs::path p = fs::read_symlink("/proc/self/exe", ec);
-  if (ec) throw Error(ExitCode::kInternal, "cannot find the tritsim binary (/proc/self/exe)");
-  return p.string();
+  po::options_description all;
+  all.add(desc);
+  all.add_options()("input", po::value(&a.inputs)->composing(), "positional inputs");
+  po::variables_map vm;
+  ParseCommandLine(command, args, all, vm, "input", -1);
 }
 
 // "I/N" -> (I, N). Throws UsageError.
@@ -133,8 +119,8 @@ std::pair<size_t, size_t> ParseShard(const std::string& text) {
 
 std::string OnlyInput(const SweepArgs& a, const std::string& what) {
   if (a.inputs.size() != 1) {
-    throw UsageError("tritsim sweep: expected one " + what + ", got " +
-                     std::to_string(a.inputs.size()) + " (see tritsim sweep --help)");
+    throw UsageError("sweep: expected one " + what + ", got " + std::to_string(a.inputs.size()) +
+                     " (see tritsim sweep --help)");
   }
   return a.inputs.front();
 }
@@ -188,14 +174,18 @@ void DrawAxisPlot(const std::string& csv, const SweepArgs& a) {
   const std::vector<std::string> axes = AxisColumnsOf(table);
   if (axes.empty()) throw InputError(csv, 1, "", "not a sweep CSV (no axis columns before status)");
   const std::string axis = a.plot_axis.empty() ? axes.front() : a.plot_axis;
+  if (std::find(axes.begin(), axes.end(), axis) == axes.end()) {
+    std::string list;
+    for (const std::string& x : axes) list += (list.empty() ? "" : ", ") + x;
+    throw UsageError("--plot-axis " + axis + ": not an axis of " + csv + "; axes: " + list);
+  }
   const std::string metric = a.metric.empty() ? kDefaultMetric : a.metric;
   const std::string name = WriteAxisPlot(a.plots, table, axes, axis, metric, csv);
   if (!a.quiet) std::cerr << "tritsim sweep: wrote " << a.plots << "/" << name << ".svg\n";
 }
 
 int RunPoints(const SweepPlan& plan, const SweepArgs& a) {
-  if (a.out.empty()) throw UsageError("tritsim sweep: --out CSV is required (or --dry-run)");
-  if (a.jobs < 0) throw UsageError("--jobs " + std::to_string(a.jobs) + ": must be at least 1");
+  if (a.out.empty()) throw UsageError("sweep: --out CSV is required (or --dry-run)");
   const std::vector<const SweepPoint*> selected = SelectedPoints(plan, a);
   const std::string hint = "nothing was changed; to start afresh, move " + a.out + " and " + a.out +
                            ".points/ away or choose another --out";
@@ -315,9 +305,9 @@ int Merge(const Args& args) {
   }
   Parse("sweep merge", args, desc, a);
   if (a.inputs.size() < 2) {
-    throw UsageError("tritsim sweep merge: expected the sweep FILE and at least one shard CSV");
+    throw UsageError("sweep merge: expected the sweep FILE and at least one shard CSV");
   }
-  if (a.out.empty()) throw UsageError("tritsim sweep merge: --out CSV is required");
+  if (a.out.empty()) throw UsageError("sweep merge: --out CSV is required");
   CheckOutputPaths({{"--out", a.out, OutputKind::kFile}});
   const SweepPlan plan = BuildSweepPlan(LoadSweepFile(a.inputs.front()));
   const std::vector<std::string> shards(a.inputs.begin() + 1, a.inputs.end());
@@ -345,7 +335,7 @@ int SweepCommand(const Args& args) {
   if (!a.pareto.empty()) return Pareto(a);
   const std::string input = OnlyInput(a, "sweep FILE");
   if (EndsWith(input, ".csv")) {
-    if (a.plots.empty()) throw UsageError("tritsim sweep " + input + ": a CSV needs --plots DIR");
+    if (a.plots.empty()) throw UsageError("sweep " + input + ": a CSV needs --plots DIR");
     DrawAxisPlot(input, a);
     return 0;
   }

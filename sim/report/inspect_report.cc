@@ -9,6 +9,7 @@
 #include "config/dram_presets.h"
 #include "mapping/tiler.h"
 #include "model/model_stats.h"
+#include "report/resolved_config.h"  // ArrayKindName
 #include "report/workload_bounds.h"
 
 namespace tritsim {
@@ -35,18 +36,6 @@ const ByClass& StorageOnArch(const ModelStats& stats, const ArchConfig& arch) {
   }
   return arch.packing.format == TritPacking::kBase3 ? stats.weight_bytes_base3
                                                     : stats.weight_bytes_two_bit;
-}
-
-const char* ArrayKindName(ArrayKind kind) {
-  switch (kind) {
-    case ArrayKind::kTernary:
-      return "ternary";
-    case ArrayKind::kInt8Mac:
-      return "int8_mac";
-    case ArrayKind::kFp16Mac:
-      return "fp16_mac";
-  }
-  return "?";
 }
 
 std::string G(double v) {

@@ -1,11 +1,13 @@
 #include "report/run_report.h"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <cstdio>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <vector>
 
+#include "common/csv.h"
 #include "trace/trace_format.h"
 
 namespace tritsim {
@@ -223,28 +225,67 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
   return j;
 }
 
+namespace {
+
+// printf-style %g with `digits` significant digits (the CSV's number format).
+std::string General(double value, int digits) { return fmt::format("{:.{}g}", value, digits); }
+
+constexpr int kSecondsDigits = 9;  // CSV seconds: %.9g
+constexpr int kFigureDigits = 6;   // other CSV reals: %.6g
+
+const std::vector<std::string>& RunCsvHeader() {
+  static const std::vector<std::string> header = {"phase",
+                                                  "layer",
+                                                  "name",
+                                                  "kind",
+                                                  "tensor",
+                                                  "cycles",
+                                                  "seconds",
+                                                  "ops",
+                                                  "dram_bytes",
+                                                  "intensity_ops_per_byte",
+                                                  "bound_cycles",
+                                                  "regime",
+                                                  "roofline_efficiency",
+                                                  "energy_joules",
+                                                  "arithmetic_joules",
+                                                  "sram_joules",
+                                                  "dram_joules",
+                                                  "decoder_joules",
+                                                  "bound_by"};
+  return header;
+}
+
+std::vector<std::string> RunCsvRow(const RunReport& r, const OpResult& layer) {
+  const EnergyBreakdown e = LayerEnergy(r, layer);
+  return {PhaseName(layer.op.phase),
+          std::to_string(layer.op.layer),
+          layer.op.name,
+          OpKindName(layer.op.kind),
+          TensorClassName(layer.op.tensor),
+          std::to_string(layer.cycles),
+          General(Seconds(layer.cycles, r.run), kSecondsDigits),
+          std::to_string(layer.ops),
+          std::to_string(layer.dram_bytes),
+          General(layer.intensity(), kFigureDigits),
+          std::to_string(layer.bound_cycles),
+          RegimeName(layer.regime),
+          General(Efficiency(layer), kFigureDigits),
+          General(e.total_joules(), kFigureDigits),
+          General(e.arithmetic_joules, kFigureDigits),
+          General(e.sram_joules, kFigureDigits),
+          General(e.dram_joules, kFigureDigits),
+          General(e.decoder_joules, kFigureDigits),
+          ResourceName(layer.bound_by)};
+}
+
+}  // namespace
+
+// One RFC 4180 line per layer op (common/csv.h), so any op name survives.
 std::string RunCsv(const RunReport& r) {
-  std::ostringstream out;
-  out << "phase,layer,name,kind,tensor,cycles,seconds,ops,dram_bytes,intensity_ops_per_byte,"
-         "bound_cycles,regime,roofline_efficiency,energy_joules,arithmetic_joules,sram_joules,"
-         "dram_joules,decoder_joules,bound_by\n";
-  for (const OpResult& layer : r.run.layers) {
-    const EnergyBreakdown e = LayerEnergy(r, layer);
-    char line[640];
-    std::snprintf(
-        line, sizeof line,
-        "%s,%lld,%s,%s,%s,%llu,%.9g,%llu,%llu,%.6g,%llu,%s,%.6g,%.6g,%.6g,%.6g,%.6g,%.6g,%s\n",
-        PhaseName(layer.op.phase), static_cast<long long>(layer.op.layer), layer.op.name.c_str(),
-        OpKindName(layer.op.kind), TensorClassName(layer.op.tensor),
-        static_cast<unsigned long long>(layer.cycles), Seconds(layer.cycles, r.run),
-        static_cast<unsigned long long>(layer.ops),
-        static_cast<unsigned long long>(layer.dram_bytes), layer.intensity(),
-        static_cast<unsigned long long>(layer.bound_cycles), RegimeName(layer.regime),
-        Efficiency(layer), e.total_joules(), e.arithmetic_joules, e.sram_joules, e.dram_joules,
-        e.decoder_joules, ResourceName(layer.bound_by));
-    out << line;
-  }
-  return out.str();
+  std::string out = CsvLine(RunCsvHeader());
+  for (const OpResult& layer : r.run.layers) out += CsvLine(RunCsvRow(r, layer));
+  return out;
 }
 
 // One phase: time, throughput, energy and the binding resource.

@@ -3,9 +3,7 @@
 
 #include <charconv>
 #include <cmath>
-#include <fstream>
 #include <nlohmann/json.hpp>
-#include <sstream>
 
 #include "common/error.h"
 #include "config/sweep_file.h"
@@ -16,11 +14,6 @@ namespace {
 
 const std::vector<std::string> kStallKeys = {"busy", "dram_wait", "sram_conflict", "vector_wait",
                                              "idle"};
-
-bool NeedsQuotes(const std::string& f) {
-  return f.find_first_of(",\"") != std::string::npos ||
-         (!f.empty() && (f.front() == ' ' || f.back() == ' '));
-}
 
 const nlohmann::json& At(const nlohmann::json& j, const std::string& section,
                          const std::string& key) {
@@ -79,81 +72,6 @@ std::vector<std::string> SweepCsvHeader(const std::vector<std::string>& axis_key
   h.push_back("json_path");
   h.insert(h.end(), IdentityColumns().begin(), IdentityColumns().end());
   return h;
-}
-
-std::string CsvLine(const std::vector<std::string>& fields) {
-  std::string line;
-  for (size_t i = 0; i < fields.size(); ++i) {
-    std::string f = fields[i];
-    for (char& c : f) {
-      if (c == '\n' || c == '\r') c = ' ';
-    }
-    if (i > 0) line += ',';
-    if (!NeedsQuotes(f)) {
-      line += f;
-      continue;
-    }
-    line += '"';
-    for (char c : f) line += c == '"' ? std::string("\"\"") : std::string(1, c);
-    line += '"';
-  }
-  return line + "\n";
-}
-
-bool ParseCsvLine(const std::string& line, std::vector<std::string>& fields) {
-  fields.assign(1, "");
-  bool quoted = false;
-  for (size_t i = 0; i < line.size(); ++i) {
-    const char c = line[i];
-    if (quoted) {
-      if (c == '"' && i + 1 < line.size() && line[i + 1] == '"') {
-        fields.back() += '"';
-        ++i;
-      } else if (c == '"') {
-        quoted = false;
-      } else {
-        fields.back() += c;
-      }
-    } else if (c == '"') {
-      quoted = true;
-    } else if (c == ',') {
-      fields.emplace_back();
-    } else if (c != '\r') {
-      fields.back() += c;
-    }
-  }
-  return !quoted;
-}
-
-CsvTable ReadCsvFile(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) throw InputError(path, 0, "", "cannot open CSV file");
-  std::ostringstream text_stream;
-  text_stream << in.rdbuf();
-  const std::string text = text_stream.str();
-  CsvTable table;
-  const size_t last_newline = text.rfind('\n');
-  table.complete_bytes = last_newline == std::string::npos ? 0 : last_newline + 1;
-  table.torn_tail = table.complete_bytes < text.size();
-  std::istringstream lines(text.substr(0, table.complete_bytes));
-  std::string line;
-  int number = 0;
-  while (std::getline(lines, line)) {
-    ++number;
-    std::vector<std::string> fields;
-    if (!ParseCsvLine(line, fields)) throw InputError(path, number, "", "unterminated quote");
-    if (number == 1) {
-      table.header = fields;
-      continue;
-    }
-    if (fields.size() != table.header.size()) {
-      throw InputError(path, number, "",
-                       "row has " + std::to_string(fields.size()) + " fields, the header " +
-                           std::to_string(table.header.size()));
-    }
-    table.rows.push_back(fields);
-  }
-  return table;
 }
 
 size_t ColumnIndex(const std::vector<std::string>& header, const std::string& column,

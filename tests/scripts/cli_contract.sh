@@ -100,5 +100,25 @@ grep -q "KiB" "$tmp/err" || fail "tile error names no size: $(cat "$tmp/err")"
 expect_exit 2 "--trace with --model" "$bin" run --trace "$src/traces/wren-0.7b-decode4.trace" \
   --model "$src/models/wren-0.7b.yaml"
 
+# Strict options (issue 12): no prefix matching; blanks around '=' of --set
+# are trimmed; provenance and resolved sections; diff.
+expect_exit 2 "prefix of --decode" "$bin" run --dec 2 -q
+grep -q "did you mean '--decode'" "$tmp/err" || fail "no suggestion for --dec: $(cat "$tmp/err")"
+grep -q "tritsim: tritsim" "$tmp/err" && fail "command name doubled: $(cat "$tmp/err")"
+expect_exit 0 "--set with blanks" "$bin" inspect --set "arch.array.trees = 128" --json "$tmp/set.json"
+/usr/bin/python3 -c "
+import json,sys; j=json.load(open('$tmp/set.json'))
+sys.exit(0 if j['resolved']['arch']['array']['trees']==128 else 1)" || fail "--set with blanks not applied"
+json_has "$tmp/set.json" provenance.version provenance.commit provenance.command \
+  resolved.model.layers resolved.arch.dram.timing.tRCD resolved.workload.decode
+json_has "$tmp/run.json" provenance.version provenance.commit provenance.command \
+  resolved.model resolved.arch.array.trees resolved.workload.batch resolved.trace \
+  resolved.weights_resident
+expect_exit 0 "diff" "$bin" diff "$tmp/run.json" "$tmp/run.json" --json "$tmp/diff.json"
+json_has "$tmp/diff.json" schema provenance.command totals.cycles.a totals.cycles.b \
+  totals.cycles.ratio phases op_classes resolved_differences
+expect_exit 0 "one decode token" "$bin" run --decode 1 --set model.layers=1
+grep -q " 1 token, " "$tmp/out" || fail "console says '1 tokens': $(grep tokens "$tmp/out" | head -n 3)"
+
 echo "cli_contract: $failures failures"
 [ "$failures" -eq 0 ]
