@@ -119,6 +119,10 @@ int RunCommand(const Args& args) {
       "plots", po::value(&plots_dir)->value_name("DIR"),
       "write roofline, stall and energy plots (SVG + data + gnuplot script)")(
       "vcd", po::value(&options.vcd_path)->value_name("FILE"), "write unit activity as VCD")(
+      "dram-log", po::value(&options.dram_log_path)->value_name("FILE"),
+      "write every DRAM command (docs/dram-log.md)")(
+      "dram-log-limit", po::value(&options.dram_log_limit)->value_name("N"),
+      "stop the DRAM log after N commands, N >= 1 (default 1000000)")(
       "weights-resident", po::bool_switch(&options.weights_resident),
       "assume all weights already sit in the scratchpad (no weight DMA)")(
       "quiet,q", po::bool_switch(&quiet), "no console summary");
@@ -132,6 +136,8 @@ int RunCommand(const Args& args) {
   po::variables_map vm;
   ParseCommandLine("run", args, desc, vm);
   FinishInputOptions(vm, in);
+  if (vm.count("dram-log-limit") && (options.dram_log_limit < 1 || options.dram_log_path.empty()))
+    throw UsageError("tritsim run: --dram-log-limit: allowed: an integer >= 1, with --dram-log");
   if (!trace_path.empty() && (in.workload_given || !in.model_path.empty())) {
     throw UsageError(
         "tritsim run: --trace fixes the model and workload; do not combine it with "

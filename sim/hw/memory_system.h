@@ -15,6 +15,7 @@
 
 #include "config/arch_config.h"
 #include "engine/run_result.h"
+#include "hw/dram_command_log.h"
 
 namespace tritsim {
 
@@ -32,6 +33,12 @@ class MemorySystem {
 
   // Accounts refreshes and bus time up to `end_ps` (end of the run).
   virtual void Finish(uint64_t end_ps) = 0;
+
+  // Sends every DRAM command from now on to `log` (Release-d as the run
+  // goes, everything by the end of Finish); the caller Closes it after
+  // Finish. Results are the same with and without a log. The ideal memory
+  // issues no commands. REQUIRES: before the first Transfer.
+  virtual void SetCommandLog(DramCommandLog* /*log*/) {}
 
   virtual const DramStats& stats() const = 0;
   virtual uint64_t burst_bytes() const = 0;          // bytes per request, all channels alike
