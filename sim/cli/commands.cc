@@ -3,19 +3,24 @@
 #include <boost/program_options.hpp>
 #include <fstream>
 #include <iostream>
+#include <nlohmann/json.hpp>
 #include <sstream>
 
 #include "cli/cli_options.h"
+#include "cli/progress_line.h"
 #include "common/atomic_file.h"
 #include "common/error.h"
+#include "common/output_paths.h"
+#include "config/energy_table.h"
+#include "datapath/accumulator_width.h"
 #include "energy/area_model.h"
 #include "energy/energy_model.h"
-#include "energy/energy_table.h"
-#include "engine/simulation.h"
+#include "mapping/tiler.h"
 #include "model/trace_builder.h"
 #include "report/inspect_report.h"
 #include "report/plots.h"
 #include "report/run_report.h"
+#include "run/simulation.h"
 #include "trace/trace_reader.h"
 #include "trace/trace_writer.h"
 
@@ -37,6 +42,12 @@ void PrintHelp(const std::string& usage, const po::options_description& desc) {
 
 std::string JsonText(const nlohmann::ordered_json& j) { return j.dump(2) + "\n"; }
 
+// One line on stderr when the accumulator can wrap on the model's GEMMs.
+void WarnAccumulatorWidth(const ArchConfig& arch, const ModelConfig& model) {
+  const std::string warning = AccumulatorWarning(arch, model);
+  if (!warning.empty()) std::cerr << "tritsim: warning: " << warning << "\n";
+}
+
 }  // namespace
 
 std::string MainUsage() {
@@ -50,6 +61,7 @@ std::string MainUsage() {
          "  trace     write the layer trace of a model and workload\n"
          "  run       simulate a workload on a design point and report it\n"
          "  sweep     run many design points (see tritsim sweep --help)\n"
+         "  datapath  check the bit-exact datapath (packing, adder trees, accumulator)\n"
          "\n"
          "Results are model estimates for architecture exploration, not sign-off numbers.\n";
 }
@@ -71,9 +83,11 @@ int InspectCommand(const Args& args) {
   po::variables_map vm;
   ParseCommandLine("inspect", args, desc, vm);
   FinishInputOptions(vm, in);
+  CheckOutputPaths({{"--json", json_path, OutputKind::kFile}});
   const ModelConfig model = LoadModel(in);
   const ArchConfig arch = LoadArch(in);
   ValidateWorkload(in.workload, model);
+  WarnAccumulatorWidth(arch, model);
   const InspectInputs inputs{model, arch, in.workload};
   if (!json_path.empty()) WriteFileAtomically(json_path, JsonText(InspectJson(inputs)));
   PrintInspect(inputs, std::cout);
@@ -95,6 +109,7 @@ int TraceCommand(const Args& args) {
   po::variables_map vm;
   ParseCommandLine("trace", args, desc, vm);
   if (out_path.empty()) throw UsageError("tritsim trace: --out FILE is required");
+  CheckOutputPaths({{"--out", out_path, OutputKind::kFile}});
   const ModelConfig model = LoadModel(in);
   ValidateWorkload(in.workload, model);
   auto source = BuildTrace(model, in.workload);
@@ -104,9 +119,65 @@ int TraceCommand(const Args& args) {
   return 0;
 }
 
+namespace {
+
+// Paths a `run` writes to; all are checked before the simulation starts.
+struct RunOutputs {
+  std::string json, csv, plots_dir;
+};
+
+// Refuses --weights-resident when the model's weights do not fit in the
+// scratchpad beside the activations: the tiler keeps half of
+// sram.capacity_kib for the activations (engine/tiler.h).
+void CheckWeightsResident(const ModelConfig& model, const ArchConfig& arch) {
+  const double weights = WeightBytesOnArch(model, arch);
+  const uint64_t room = ComputeRates(arch).activation_bytes;  // the half left for weights
+  if (weights <= double(room)) return;
+  throw SimError("--weights-resident: the weights of " + model.name + " (" +
+                 std::to_string(uint64_t(weights)) +
+                 " bytes on this design) do not fit in the scratchpad beside the activations: " +
+                 std::to_string(room) +
+                 " bytes (half of sram.capacity_kib = " + std::to_string(arch.sram.capacity_kib) +
+                 " KiB; the other half holds activations); drop --weights-resident");
+}
+
+// The trace to simulate: generated from the model (checking its workload and
+// --weights-resident), or replayed from --trace. Sets `ops_per_step` for the
+// progress line (0 for a replayed trace: learned as it runs).
+std::unique_ptr<TraceSource> OpenRunTrace(const InputOptions& in, const std::string& trace_path,
+                                          const ArchConfig& arch, const SimOptions& options,
+                                          uint64_t& ops_per_step) {
+  if (!trace_path.empty()) return OpenTraceFile(trace_path);
+  const ModelConfig model = LoadModel(in);
+  ValidateWorkload(in.workload, model);
+  WarnAccumulatorWidth(arch, model);
+  if (options.weights_resident) CheckWeightsResident(model, arch);
+  ops_per_step = OpsPerStep(model);
+  return BuildTrace(model, in.workload);
+}
+
+// Simulates with a progress line on stderr when `show_progress`.
+RunResult SimulateRun(const ArchConfig& arch, TraceSource& source, SimOptions options,
+                      bool show_progress, uint64_t ops_per_step) {
+  if (!show_progress) return RunSimulation(arch, source, options);
+  const WorkloadConfig& w = source.header().workload;
+  ProgressLine line(w.prefill_tokens > 0 ? 1 : 0, w.decode_tokens, ops_per_step);
+  options.on_progress = [&line](const SimProgress& p) { line.Update(p); };
+  return RunSimulation(arch, source, options);
+}
+
+void WriteRunOutputs(const RunOutputs& out, const RunReport& report) {
+  if (!out.json.empty()) WriteFileAtomically(out.json, JsonText(RunJson(report)));
+  if (!out.csv.empty()) WriteFileAtomically(out.csv, RunCsv(report));
+  if (!out.plots_dir.empty()) WriteRunPlots(out.plots_dir, report.run, report.energy);
+}
+
+}  // namespace
+
 int RunCommand(const Args& args) {
   InputOptions in;
-  std::string trace_path, json_path, csv_path, plots_dir;
+  std::string trace_path;
+  RunOutputs out;
   SimOptions options;
   bool quiet = false;
   po::options_description desc("run options");
@@ -114,9 +185,9 @@ int RunCommand(const Args& args) {
   AddInputOptions(desc, in, true);
   desc.add_options()("trace", po::value(&trace_path)->value_name("FILE"),
                      "replay a saved trace instead of generating one from --model")(
-      "json", po::value(&json_path)->value_name("FILE"), "write the full report as JSON")(
-      "csv", po::value(&csv_path)->value_name("FILE"), "write one row per layer op as CSV")(
-      "plots", po::value(&plots_dir)->value_name("DIR"),
+      "json", po::value(&out.json)->value_name("FILE"), "write the full report as JSON")(
+      "csv", po::value(&out.csv)->value_name("FILE"), "write one row per layer op as CSV")(
+      "plots", po::value(&out.plots_dir)->value_name("DIR"),
       "write roofline, stall and energy plots (SVG + data + gnuplot script)")(
       "vcd", po::value(&options.vcd_path)->value_name("FILE"), "write unit activity as VCD")(
       "dram-log", po::value(&options.dram_log_path)->value_name("FILE"),
@@ -124,12 +195,16 @@ int RunCommand(const Args& args) {
       "dram-log-limit", po::value(&options.dram_log_limit)->value_name("N"),
       "stop the DRAM log after N commands, N >= 1 (default 1000000)")(
       "weights-resident", po::bool_switch(&options.weights_resident),
-      "assume all weights already sit in the scratchpad (no weight DMA)")(
-      "quiet,q", po::bool_switch(&quiet), "no console summary");
+      "what-if: all weights already sit in the scratchpad, so no weight DMA; refused (exit 4) "
+      "when they do not fit in the half of it beside the activations; needs --model; recorded "
+      "as design.weights_resident in the JSON")("quiet,q", po::bool_switch(&quiet),
+                                                "no console summary and no progress line");
   if (WantsHelp(args)) {
     PrintHelp(
         "usage: tritsim run [--model FILE | --trace FILE] [--arch FILE] [workload options]\n"
-        "                   [--json FILE] [--csv FILE] [--plots DIR]",
+        "                   [--json FILE] [--csv FILE] [--plots DIR] [--vcd FILE]\n"
+        "                   [--dram-log FILE [--dram-log-limit N]]\n"
+        "On a terminal, a progress line (step, share done, simulated time, ETA) shows on stderr.",
         desc);
     return 0;
   }
@@ -143,26 +218,28 @@ int RunCommand(const Args& args) {
         "tritsim run: --trace fixes the model and workload; do not combine it with "
         "--model or workload options");
   }
+  if (!trace_path.empty() && options.weights_resident) {
+    throw UsageError(
+        "tritsim run: --weights-resident needs the model to check that its weights fit the "
+        "scratchpad; use --model instead of --trace");
+  }
+  // Before anything is simulated: a typo in an output path must not cost the run.
+  CheckOutputPaths({{"--json", out.json, OutputKind::kFile},
+                    {"--csv", out.csv, OutputKind::kFile},
+                    {"--plots", out.plots_dir, OutputKind::kFolder},
+                    {"--vcd", options.vcd_path, OutputKind::kFile},
+                    {"--dram-log", options.dram_log_path, OutputKind::kFile}});
   const ArchConfig arch = LoadArch(in);
   // Resolved before running, so a bad energy table is rejected at once.
   const EnergyTable table = ResolveEnergyTable(arch.energy, arch.dram.preset);
-  std::unique_ptr<TraceSource> source;
-  WorkloadConfig workload = in.workload;
-  if (trace_path.empty()) {
-    const ModelConfig model = LoadModel(in);
-    ValidateWorkload(in.workload, model);
-    source = BuildTrace(model, in.workload);
-  } else {
-    source = OpenTraceFile(trace_path);
-    workload = source->header().workload;
-  }
-  const RunResult run = RunSimulation(arch, *source, options);
+  uint64_t ops_per_step = 0;
+  std::unique_ptr<TraceSource> source = OpenRunTrace(in, trace_path, arch, options, ops_per_step);
+  const WorkloadConfig workload = source->header().workload;
+  const RunResult run = SimulateRun(arch, *source, options, WantsProgressLine(quiet), ops_per_step);
   const EnergyBreakdown energy = ComputeEnergyWithTable(arch, table, run);
   const AreaBreakdown area = EstimateArea(arch);
   const RunReport report{arch, workload, run, energy, area, table};
-  if (!json_path.empty()) WriteFileAtomically(json_path, JsonText(RunJson(report)));
-  if (!csv_path.empty()) WriteFileAtomically(csv_path, RunCsv(report));
-  if (!plots_dir.empty()) WriteRunPlots(plots_dir, run, energy);
+  WriteRunOutputs(out, report);
   if (!quiet) PrintRunSummary(report, std::cout);
   return 0;
 }

@@ -15,6 +15,7 @@ int InspectCommand(const Args& args);
 int TraceCommand(const Args& args);
 int RunCommand(const Args& args);
 int SweepCommand(const Args& args);
+int DatapathCommand(const Args& args);  // cli/datapath_command.cc
 
 // Overall usage text (subcommands), for `tritsim --help`.
 std::string MainUsage();

@@ -20,10 +20,9 @@ using Command = int (*)(const tritsim::Args&);
 
 const std::map<std::string, Command>& Commands() {
   static const std::map<std::string, Command> commands = {
-      {"inspect", tritsim::InspectCommand},
-      {"trace", tritsim::TraceCommand},
-      {"run", tritsim::RunCommand},
-      {"sweep", tritsim::SweepCommand},
+      {"inspect", tritsim::InspectCommand},   {"trace", tritsim::TraceCommand},
+      {"run", tritsim::RunCommand},           {"sweep", tritsim::SweepCommand},
+      {"datapath", tritsim::DatapathCommand},
   };
   return commands;
 }
@@ -41,7 +40,7 @@ int Dispatch(int argc, char** argv) {
   auto it = Commands().find(name);
   if (it == Commands().end()) {
     throw tritsim::UsageError("unknown command '" + name +
-                              "'; commands: inspect, trace, run, sweep (tritsim --help)");
+                              "'; commands: inspect, trace, run, sweep, datapath (tritsim --help)");
   }
   return it->second(tritsim::Args(argv + 2, argv + argc));
 }

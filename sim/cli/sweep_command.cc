@@ -9,16 +9,17 @@
 #include <filesystem>
 #include <iomanip>
 #include <iostream>
-#include <set>
 #include <thread>
 
 #include "cli/commands.h"
 #include "common/atomic_file.h"
 #include "common/error.h"
+#include "common/output_paths.h"
 #include "config/sweep_file.h"
 #include "sweep/pareto.h"
 #include "sweep/slurm_script.h"
 #include "sweep/sweep_csv.h"
+#include "sweep/sweep_identity.h"
 #include "sweep/sweep_journal.h"
 #include "sweep/sweep_merge.h"
 #include "sweep/sweep_plan.h"
@@ -196,9 +197,12 @@ int RunPoints(const SweepPlan& plan, const SweepArgs& a) {
   if (a.out.empty()) throw UsageError("tritsim sweep: --out CSV is required (or --dry-run)");
   if (a.jobs < 0) throw UsageError("--jobs " + std::to_string(a.jobs) + ": must be at least 1");
   const std::vector<const SweepPoint*> selected = SelectedPoints(plan, a);
-  std::set<std::string> ids;
-  for (const SweepPoint& p : plan.points) ids.insert(p.id);
-  SweepJournal journal(a.out, SweepCsvHeader(plan.axis_keys), ids, a.resume);
+  const std::string hint = "nothing was changed; to start afresh, move " + a.out + " and " + a.out +
+                           ".points/ away or choose another --out";
+  const ResumeCheck check = [&plan, &a, &hint](const CsvTable& table) {
+    CheckRowsBelong(plan, table, a.out, hint);
+  };
+  SweepJournal journal(a.out, SweepCsvHeader(plan.axis_keys), check, a.resume);
   std::vector<const SweepPoint*> todo;
   for (const SweepPoint* p : selected) {
     if (!journal.done().count(p->id)) todo.push_back(p);
@@ -241,6 +245,10 @@ void PrintFront(const CsvTable& table, const std::vector<Objective>& objectives,
   }
 }
 
+std::string ParetoOut(const SweepArgs& a) {
+  return !a.out.empty() || a.inputs.size() != 1 ? a.out : a.inputs.front() + ".pareto.csv";
+}
+
 int Pareto(const SweepArgs& a) {
   const std::string csv = OnlyInput(a, "result CSV for --pareto");
   if (EndsWith(csv, ".yaml") || EndsWith(csv, ".yml")) {
@@ -261,7 +269,7 @@ int Pareto(const SweepArgs& a) {
     rows.push_back(selected.rows[i]);
     text += CsvLine(table.rows[selected.rows[i]]);
   }
-  const std::string out = a.out.empty() ? csv + ".pareto.csv" : a.out;
+  const std::string out = ParetoOut(a);
   WriteFileAtomically(out, text);
   PrintFront(table, objectives, rows);
   if (!a.quiet) {
@@ -273,6 +281,21 @@ int Pareto(const SweepArgs& a) {
     if (!a.plot_axis.empty() || !a.metric.empty()) DrawAxisPlot(csv, a);
   }
   return 0;
+}
+
+// Every output this invocation may write, checked before any work
+// (common/output_paths.h). A dry run writes nothing.
+void CheckSweepOutputs(const SweepArgs& a) {
+  const OutputPath plots{"--plots", a.plots, OutputKind::kFolder};
+  if (!a.pareto.empty()) {
+    CheckOutputPaths({{"--out", ParetoOut(a), OutputKind::kFile}, plots});
+  } else if (!a.slurm.empty()) {
+    CheckOutputPaths({{"--slurm", a.slurm, OutputKind::kFolder}});
+  } else if (!a.dry_run) {
+    const std::string points = a.out.empty() ? "" : a.out + ".points";
+    CheckOutputPaths(
+        {{"--out", a.out, OutputKind::kFile}, {"--out", points, OutputKind::kFolder}, plots});
+  }
 }
 
 bool WantsHelp(const Args& args) {
@@ -295,6 +318,7 @@ int Merge(const Args& args) {
     throw UsageError("tritsim sweep merge: expected the sweep FILE and at least one shard CSV");
   }
   if (a.out.empty()) throw UsageError("tritsim sweep merge: --out CSV is required");
+  CheckOutputPaths({{"--out", a.out, OutputKind::kFile}});
   const SweepPlan plan = BuildSweepPlan(LoadSweepFile(a.inputs.front()));
   const std::vector<std::string> shards(a.inputs.begin() + 1, a.inputs.end());
   WriteFileAtomically(a.out, MergeShardCsvs(plan, shards));
@@ -317,6 +341,7 @@ int SweepCommand(const Args& args) {
     return 0;
   }
   Parse("sweep", args, desc, a);
+  CheckSweepOutputs(a);
   if (!a.pareto.empty()) return Pareto(a);
   const std::string input = OnlyInput(a, "sweep FILE");
   if (EndsWith(input, ".csv")) {

@@ -17,7 +17,6 @@ void WriteFileAtomically(const std::string& path, const std::string& content);
 // Streams into `path` atomically: `write` fills the stream (it may throw;
 // then the temporary is removed and the target left untouched). For outputs
 // too large to hold in memory, such as long traces.
-void StreamFileAtomically(const std::string& path,
-                          const std::function<void(std::ostream&)>& write);
+void StreamFileAtomically(const std::string& path, const std::function<void(std::ostream&)>& write);
 
 }  // namespace tritsim

@@ -1,9 +1,9 @@
 // Errors that cross module boundaries, and the process exit codes they map to.
 //
-// Every user-facing failure is one of these; its message is always one line. The CLI catches them at the
-// top, prints what() as a single line on stderr and exits with code().
-// Library exceptions (yaml-cpp, Boost.Program_options, SystemC reports) are
-// translated into these at the boundary where they can occur.
+// Every user-facing failure is one of these; its message is always one line. The CLI catches them
+// at the top, prints what() as a single line on stderr and exits with code(). Library exceptions
+// (yaml-cpp, Boost.Program_options, SystemC reports) are translated into these at the boundary
+// where they can occur.
 #pragma once
 
 #include <stdexcept>
@@ -33,7 +33,8 @@ inline std::string OneLine(std::string text) {
 
 class Error : public std::runtime_error {
  public:
-  Error(ExitCode code, const std::string& message) : std::runtime_error(OneLine(message)), code_(code) {}
+  Error(ExitCode code, const std::string& message)
+      : std::runtime_error(OneLine(message)), code_(code) {}
   ExitCode code() const { return code_; }
 
  private:

@@ -13,8 +13,8 @@
 #include "common/error.h"
 #include "config/dram_presets.h"
 #include "config/embedded_defaults.h"
+#include "config/energy_table.h"
 #include "config/yaml_reader.h"
-#include "energy/energy_table.h"
 
 namespace tritsim {
 namespace {
@@ -266,8 +266,8 @@ void CheckTiming(const Section& s, const DramTiming& t) {
   // Refresh may take at most half the time (JEDEC parts spend a few percent;
   // beyond half a channel does little but refresh and runs crawl).
   if (t.tREFI < 2 * t.tRFC) {
-    s.FailAtAny({"tREFI", "tRFC"}, "tREFI (" + Cycles(t.tREFI) +
-                                       ") must be at least twice tRFC (" + Cycles(t.tRFC) + ")");
+    s.FailAtAny({"tREFI", "tRFC"}, "tREFI (" + Cycles(t.tREFI) + ") must be at least twice tRFC (" +
+                                       Cycles(t.tRFC) + ")");
   }
   if (t.tCCD_L < t.tCCD_S) {
     s.FailAtAny({"tCCD_L", "tCCD_S"}, "tCCD_L (" + Cycles(t.tCCD_L) +

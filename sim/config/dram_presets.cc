@@ -1,5 +1,5 @@
 // DRAM preset tables. Each value names its source and a confidence level,
-// as in /work/shared/REFERENCES.md: H read in a standard or datasheet, M
+// as in docs/references.md: H read in a standard or datasheet, M
 // several secondary copies agree, L from memory only.
 //
 // Timing is in DRAM clock cycles of our convention: two data transfers per
@@ -23,7 +23,7 @@ int64_t NsToCycles(double ns, double tck_ns) {
 }
 
 // DDR4-3200AA, 8 Gb x8 devices, 64-bit channel (JESD79-4 and device
-// datasheets, via REFERENCES.md).
+// datasheets, via docs/references.md).
 void ApplyDdr4_3200(DramConfig& d) {
   d.bus_width_bits = 64;  // one 64-bit channel (JESD79-4 DIMM; H)
   d.bank_groups = 4;      // 4 bank groups for x8 (JESD79-4; H)
@@ -39,7 +39,7 @@ void ApplyDdr4_3200(DramConfig& d) {
   t.tRC = 74;          // 45.75 ns = tRAS + tRP (JESD79-4; H)
   t.tCCD_S = 4;        // (JESD79-4; H)
   t.tCCD_L = 8;        // 5 ns at 3200 (JESD79-4; H)
-  t.tRRD_S = 4;        // 1 KB page (JESD79-4; L, REFERENCES.md)
+  t.tRRD_S = 4;        // 1 KB page (JESD79-4; L, docs/references.md)
   t.tRRD_L = 8;        // 1 KB page (JESD79-4; M)
   t.tFAW = 34;         // 21 ns, 1 KB page (JESD79-4; M)
   t.tWR = 24;          // 15 ns (JESD79-4; H)
@@ -51,7 +51,7 @@ void ApplyDdr4_3200(DramConfig& d) {
   t.burst_length = 8;  // BL8 (JESD79-4; H)
 }
 
-// LPDDR5-6400, one x16 channel (JESD209-5, via REFERENCES.md). tCK here is
+// LPDDR5-6400, one x16 channel (JESD209-5, via docs/references.md). tCK here is
 // our two-transfers-per-tCK unit, 1 / 3200 MHz = 0.3125 ns (a quarter of the
 // 800 MHz command clock period), so ns values convert at 0.3125 ns/cycle.
 void ApplyLpddr5_6400(DramConfig& d) {
@@ -83,7 +83,7 @@ void ApplyLpddr5_6400(DramConfig& d) {
 }
 
 // HBM2E at 3.6 Gb/s per pin, one 64-bit pseudo-channel (JESD235 family, via
-// REFERENCES.md). tCK = 1 / 1.8 GHz = 0.5556 ns.
+// docs/references.md). tCK = 1 / 1.8 GHz = 0.5556 ns.
 void ApplyHbm2e(DramConfig& d) {
   constexpr double kTck = 1000.0 / 1800.0;  // 3.6 Gb/s / 2 (JESD235; H)
   d.bus_width_bits = 64;  // pseudo-channel mode, 16 x 64 bits per stack (JESD235A; H)

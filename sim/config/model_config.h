@@ -41,7 +41,7 @@ struct ModelConfig {
 
   // Fraction of ternary weights that are zero. Default: absmean quantization
   // of Gaussian weights leaves erf(1/(2 sqrt(pi))) = 0.31006 zeros
-  // (derivation in ../shared/REFERENCES.md). Range [0, 1).
+  // (derivation in docs/references.md). Range [0, 1).
   double weight_zero_fraction = 0.31006;
 };
 

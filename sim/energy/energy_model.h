@@ -26,8 +26,8 @@
 #pragma once
 
 #include "config/arch_config.h"
-#include "energy/energy_table.h"
-#include "engine/run_result.h"
+#include "config/energy_table.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 

@@ -10,7 +10,7 @@ Accelerator::Accelerator(sc_core::sc_module_name name, const ArchConfig& arch,
       period_ps_(ComputeRates(arch).core_period_ps),
       sram_("scratchpad", arch.sram),
       dma_("dma", arch.dma, period_ps_, *memory_, sram_, uint64_t(arch.sram.bank_width_bytes)),
-      tree_array_("tree_array", arch.array, period_ps_, sram_),
+      tree_array_("tree_array", arch.array, arch.packing, period_ps_, sram_),
       vector_unit_("vector_unit", arch.vector, period_ps_, sram_),
       sequencer_("sequencer", arch, options, trace, dma_, tree_array_, vector_unit_) {
   if (options.dram_log != nullptr) memory_->SetCommandLog(options.dram_log);

@@ -9,14 +9,14 @@
 #include <systemc>
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
-#include "engine/sim_options.h"
 #include "hw/dma_engine.h"
 #include "hw/memory_system.h"
 #include "hw/scratchpad.h"
 #include "hw/sequencer.h"
 #include "hw/tree_array.h"
 #include "hw/vector_unit.h"
+#include "mapping/sim_options.h"
+#include "results/run_result.h"
 #include "trace/trace_source.h"
 
 namespace tritsim {

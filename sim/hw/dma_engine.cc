@@ -81,4 +81,12 @@ void DmaEngine::Run() {
   }
 }
 
+void DmaEngine::CountTransferEvents(uint64_t load_bytes, uint64_t store_bytes,
+                                    EventCounts& events) const {
+  events.sram_writes += sram_.AccessesFor(load_bytes);
+  events.sram_reads += sram_.AccessesFor(store_bytes);
+  events.dram_bytes_read += load_bytes;
+  events.dram_bytes_written += store_bytes;
+}
+
 }  // namespace tritsim

@@ -19,7 +19,8 @@
 #include "config/arch_config.h"
 #include "hw/memory_system.h"
 #include "hw/scratchpad.h"
-#include "report/vcd_writer.h"
+#include "results/activity_log.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 
@@ -45,6 +46,10 @@ class DmaEngine : public sc_core::sc_module {
     load_signal_ = load_signal;
     store_signal_ = store_signal;
   }
+  // Events of one tile's transfers: scratchpad writes of its load, reads of
+  // its store, and the DRAM bytes both move. Adds them into `events`.
+  void CountTransferEvents(uint64_t load_bytes, uint64_t store_bytes, EventCounts& events) const;
+
   uint64_t bytes_loaded() const { return bytes_loaded_; }
   uint64_t bytes_stored() const { return bytes_stored_; }
 

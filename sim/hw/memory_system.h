@@ -14,8 +14,8 @@
 #include <memory>
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
 #include "hw/dram_command_log.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 

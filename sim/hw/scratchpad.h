@@ -34,6 +34,15 @@ class Scratchpad : public sc_core::sc_module {
   uint64_t reads() const { return reads_; }
   uint64_t writes() const { return writes_; }
   uint64_t conflict_cycles() const { return conflict_cycles_; }
+  // Bank accesses that move `bytes` (each access moves one bank width).
+  uint64_t AccessesFor(uint64_t bytes) const {
+    const uint64_t width = uint64_t(config_.bank_width_bytes);
+    return (bytes + width - 1) / width;
+  }
+  // Bytes all banks deliver together in one core cycle (one access each).
+  uint64_t bytes_per_cycle() const {
+    return uint64_t(config_.banks) * uint64_t(config_.bank_width_bytes);
+  }
   // Port-cycles available per core cycle (banks x ports).
   uint64_t ports_total() const { return uint64_t(config_.banks) * uint64_t(config_.ports); }
 

@@ -160,29 +160,22 @@ void Sequencer::RunItem(const WorkItem& item) {
   op.span_start_ps = std::min(op.span_start_ps, NowPs());
   const bool on_array = item.unit == Unit::kTreeArray;
   compute_state_ = on_array ? "the tree array" : "the vector unit";
-  const uint64_t conflicts = on_array ? tree_array_.Execute(item) : vector_unit_.Execute(item);
+  const TileRun run = on_array ? tree_array_.Execute(item) : vector_unit_.Execute(item);
   const uint64_t now = NowPs();
   if (on_array) {
-    stalls_.busy += item.compute_cycles;
-    stalls_.sram_conflict += conflicts;
+    stalls_.busy += run.cost.cycles;
+    stalls_.sram_conflict += run.conflict_cycles;
   } else {
-    stalls_.vector_wait += item.compute_cycles + conflicts;
+    stalls_.vector_wait += run.cost.cycles + run.conflict_cycles;
   }
   mark_ps_ = now;
   ++free_slots_;
   slot_freed_.notify(sc_core::SC_ZERO_TIME);
   if (item.store_bytes > 0) dma_.PostStore(item.store_address, item.store_bytes);
-  CountItemEvents(item, op.events);
+  AddEvents(run.cost.events, op.events);
+  op.events.sram_reads += run.cost.sram_read_accesses;
+  dma_.CountTransferEvents(item.load_bytes, item.store_bytes, op.events);
   if (item.last_of_op) RetireOp(op);
-}
-
-void Sequencer::CountItemEvents(const WorkItem& item, EventCounts& e) const {
-  const uint64_t bank_width = uint64_t(arch_.sram.bank_width_bytes);
-  AddEvents(item.events, e);
-  e.sram_reads += item.sram_read_accesses + (item.store_bytes + bank_width - 1) / bank_width;
-  e.sram_writes += (item.load_bytes + bank_width - 1) / bank_width;
-  e.dram_bytes_read += item.load_bytes;
-  e.dram_bytes_written += item.store_bytes;
 }
 
 void Sequencer::RetireOp(OpInFlight& op) {

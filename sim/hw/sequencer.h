@@ -23,10 +23,10 @@
 
 #include <systemc>
 
-#include "engine/run_result.h"
-#include "engine/tiler.h"
 #include "hw/compute_unit.h"
 #include "hw/dma_engine.h"
+#include "mapping/tiler.h"
+#include "results/run_result.h"
 #include "trace/trace_source.h"
 
 namespace tritsim {
@@ -67,7 +67,6 @@ class Sequencer : public sc_core::sc_module {
   void IssueOp(const TraceOp& op, const TraceStep& step);
   void RunItem(const WorkItem& item);
   void RetireOp(OpInFlight& op);
-  void CountItemEvents(const WorkItem& item, EventCounts& events) const;
   void Charge(uint64_t& bucket);
   void AlignToCycle();
   size_t ResultIndex(const TraceOp& op);

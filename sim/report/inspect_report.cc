@@ -1,10 +1,11 @@
 #include "report/inspect_report.h"
 
 #include <cstdio>
+#include <nlohmann/json.hpp>
 #include <string>
 
 #include "config/dram_presets.h"
-#include "engine/tiler.h"
+#include "mapping/tiler.h"
 #include "model/model_stats.h"
 
 namespace tritsim {
@@ -52,6 +53,10 @@ std::string G(double v) {
 }
 
 }  // namespace
+
+double WeightBytesOnArch(const ModelConfig& model, const ArchConfig& arch) {
+  return StorageOnArch(ComputeModelStats(model), arch).total();
+}
 
 double PeakOpsPerSecond(const ArchConfig& arch) {
   const HardwareRates rates = ComputeRates(arch);

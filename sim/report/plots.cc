@@ -16,8 +16,8 @@
 #include <sstream>
 #include <system_error>
 
-#include "report/gnuplot.h"
 #include "common/error.h"
+#include "report/gnuplot.h"
 #include "trace/trace_format.h"
 
 namespace tritsim {
@@ -26,9 +26,9 @@ namespace {
 namespace fs = std::filesystem;
 
 constexpr double kHzPerMhz = 1e6;
-constexpr double kRangeDecade = 10.0;   // roofline x margin beyond the points, factor
-constexpr double kRangeMarginY = 3.0;   // roofline y margin, factor
-constexpr double kBarHeadroom = 1.15;   // bar charts: top of the y range over the tallest bar
+constexpr double kRangeDecade = 10.0;  // roofline x margin beyond the points, factor
+constexpr double kRangeMarginY = 3.0;  // roofline y margin, factor
+constexpr double kBarHeadroom = 1.15;  // bar charts: top of the y range over the tallest bar
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
 

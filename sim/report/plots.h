@@ -25,7 +25,7 @@
 #include <vector>
 
 #include "energy/energy_model.h"
-#include "engine/run_result.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 

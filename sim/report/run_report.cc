@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cstdio>
+#include <nlohmann/json.hpp>
 #include <sstream>
 #include <vector>
 
@@ -102,7 +103,10 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
   const Headline h = ComputeHeadline(r);
   ordered_json j;
   j["schema"] = kRunSchema;
-  j["design"] = {{"arch", run.arch_name}, {"model", run.model_name}, {"core_mhz", run.core_mhz}};
+  j["design"] = {{"arch", run.arch_name},
+                 {"model", run.model_name},
+                 {"core_mhz", run.core_mhz},
+                 {"weights_resident", run.weights_resident}};
   j["workload"] = {{"prefill", r.workload.prefill_tokens},
                    {"decode", r.workload.decode_tokens},
                    {"context", r.workload.context_tokens},

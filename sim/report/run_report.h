@@ -7,13 +7,13 @@
 #include <ostream>
 #include <string>
 
-#include <nlohmann/json.hpp>
+#include <nlohmann/json_fwd.hpp>
 
 #include "config/arch_config.h"
 #include "config/workload_config.h"
 #include "energy/area_model.h"
 #include "energy/energy_model.h"
-#include "engine/run_result.h"
+#include "results/run_result.h"
 
 namespace tritsim {
 

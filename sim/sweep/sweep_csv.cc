@@ -4,10 +4,12 @@
 #include <charconv>
 #include <cmath>
 #include <fstream>
+#include <nlohmann/json.hpp>
 #include <sstream>
 
 #include "common/error.h"
 #include "config/sweep_file.h"
+#include "sweep/sweep_identity.h"
 
 namespace tritsim {
 namespace {
@@ -75,6 +77,7 @@ std::vector<std::string> SweepCsvHeader(const std::vector<std::string>& axis_key
   h.insert(h.end(), {"status", "error"});
   h.insert(h.end(), MetricColumns().begin(), MetricColumns().end());
   h.push_back("json_path");
+  h.insert(h.end(), IdentityColumns().begin(), IdentityColumns().end());
   return h;
 }
 

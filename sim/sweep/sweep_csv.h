@@ -2,7 +2,8 @@
 // (for resume, merge and Pareto extraction).
 //
 // Columns, in order:
-//   id, <one column per axis key>, status, error, <kMetricColumns...>, json_path
+//   id, <one column per axis key>, status, error, <kMetricColumns...>, json_path,
+//   <IdentityColumns()...> (sweep_identity.h: what the row was computed from)
 // status is "ok" or "failed"; error is empty for ok rows. Fields holding a
 // comma, quote or leading/trailing space are quoted as in RFC 4180 (quotes
 // doubled); no field ever holds a line break, so one line is one row.
@@ -12,7 +13,7 @@
 #include <string>
 #include <vector>
 
-#include <nlohmann/json.hpp>
+#include <nlohmann/json_fwd.hpp>
 
 namespace tritsim {
 

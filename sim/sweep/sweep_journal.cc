@@ -25,10 +25,35 @@ Error IoError(const std::string& path, const std::string& what) {
   return Error(ExitCode::kBadInput, path + ": " + what + ": " + std::strerror(errno));
 }
 
+// The check of the plain constructor: the same header, known ids only.
+ResumeCheck HeaderAndIdsCheck(const std::string& path, const std::vector<std::string>& header,
+                              const std::set<std::string>& known_ids) {
+  return [path, header, known_ids](const CsvTable& table) {
+    if (table.header != header) {
+      throw InputError(path, 1, "",
+                       "header differs from this sweep's columns; the CSV belongs "
+                       "to another sweep file or version (use another --out)");
+    }
+    for (size_t i = 0; i < table.rows.size(); ++i) {
+      const std::string& id = table.rows[i].front();
+      if (!known_ids.count(id)) {
+        throw InputError(path, int(i) + 2, "",
+                         "point " + id +
+                             " is not in this sweep (the sweep file "
+                             "changed?); use another --out");
+      }
+    }
+  };
+}
+
 }  // namespace
 
 SweepJournal::SweepJournal(const std::string& path, const std::vector<std::string>& header,
                            const std::set<std::string>& known_ids, bool resume)
+    : SweepJournal(path, header, HeaderAndIdsCheck(path, header, known_ids), resume) {}
+
+SweepJournal::SweepJournal(const std::string& path, const std::vector<std::string>& header,
+                           const ResumeCheck& check, bool resume)
     : path_(path) {
   const off_t size = FileSize(path);
   if (size > 0 && !resume) {
@@ -36,7 +61,7 @@ SweepJournal::SweepJournal(const std::string& path, const std::vector<std::strin
                      " exists; pass --resume to run only its missing points, or choose "
                      "another --out");
   }
-  if (size > 0) ResumeFrom(header, known_ids);
+  if (size > 0) ResumeFrom(check);
   fd_ = ::open(path.c_str(), O_WRONLY | O_APPEND | O_CREAT | O_CLOEXEC, 0644);
   if (fd_ < 0) throw IoError(path, "cannot open for appending");
   if (FileSize(path) == 0) AppendLine(CsvLine(header));
@@ -46,30 +71,17 @@ SweepJournal::~SweepJournal() {
   if (fd_ >= 0) ::close(fd_);
 }
 
-void SweepJournal::ResumeFrom(const std::vector<std::string>& header,
-                              const std::set<std::string>& known_ids) {
+void SweepJournal::ResumeFrom(const ResumeCheck& check) {
   const CsvTable table = ReadCsvFile(path_);
-  if (table.torn_tail && ::truncate(path_.c_str(), off_t(table.complete_bytes)) != 0) {
-    throw IoError(path_, "cannot cut the torn final line");
-  }
-  if (table.complete_bytes == 0) return;  // not even a whole header: start afresh
-  if (table.header != header) {
-    throw InputError(path_, 1, "",
-                     "header differs from this sweep's columns; the CSV belongs "
-                     "to another sweep file or version (use another --out)");
-  }
+  if (table.complete_bytes > 0) check(table);  // not even a whole header: start afresh
   for (size_t i = 0; i < table.rows.size(); ++i) {
     const std::string& id = table.rows[i].front();
-    const int line = int(i) + 2;
-    if (!known_ids.count(id)) {
-      throw InputError(path_, line, "",
-                       "point " + id +
-                           " is not in this sweep (the sweep file "
-                           "changed?); use another --out");
-    }
     if (!done_.insert(id).second) {
-      throw InputError(path_, line, "", "point " + id + " appears twice");
+      throw InputError(path_, int(i) + 2, "", "point " + id + " appears twice");
     }
+  }
+  if (table.torn_tail && ::truncate(path_.c_str(), off_t(table.complete_bytes)) != 0) {
+    throw IoError(path_, "cannot cut the torn final line");
   }
 }
 

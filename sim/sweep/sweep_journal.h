@@ -3,11 +3,18 @@
 // of whole rows plus at most one torn final line, which resume cuts away.
 #pragma once
 
+#include <functional>
 #include <set>
 #include <string>
 #include <vector>
 
 namespace tritsim {
+
+struct CsvTable;
+
+// Checks the rows of a CSV about to be resumed; throws tritsim::Error
+// (kBadInput) naming what differs. Runs before the file is changed in any way.
+using ResumeCheck = std::function<void(const CsvTable& table)>;
 
 class SweepJournal {
  public:
@@ -21,6 +28,11 @@ class SweepJournal {
   //   once; their ids become done().
   SweepJournal(const std::string& path, const std::vector<std::string>& header,
                const std::set<std::string>& known_ids, bool resume);
+  // Same, with `check` in place of the header and id checks (duplicate ids
+  // are still refused). A refused CSV is left byte for byte as it was: a torn
+  // final line is cut only after every check passed.
+  SweepJournal(const std::string& path, const std::vector<std::string>& header,
+               const ResumeCheck& check, bool resume);
   ~SweepJournal();
   SweepJournal(const SweepJournal&) = delete;
   SweepJournal& operator=(const SweepJournal&) = delete;
@@ -34,7 +46,7 @@ class SweepJournal {
 
  private:
   void AppendLine(const std::string& line);
-  void ResumeFrom(const std::vector<std::string>& header, const std::set<std::string>& known_ids);
+  void ResumeFrom(const ResumeCheck& check);
 
   std::string path_;
   int fd_ = -1;

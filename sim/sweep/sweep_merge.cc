@@ -6,6 +6,7 @@
 
 #include "common/error.h"
 #include "sweep/sweep_csv.h"
+#include "sweep/sweep_identity.h"
 
 namespace tritsim {
 namespace {
@@ -22,6 +23,13 @@ std::string ListIds(const std::string& what, std::vector<std::string> ids) {
   return out + ")";
 }
 
+// How to go on when a shard belongs to other inputs.
+std::string MergeHint(const SweepPlan& plan) {
+  return "this shard was not run from " + plan.file.path +
+         " as it is now; nothing written (re-run the shards with it, or merge with the sweep "
+         "file they were run from)";
+}
+
 }  // namespace
 
 std::string MergeShardCsvs(const SweepPlan& plan, const std::vector<std::string>& shard_paths) {
@@ -32,12 +40,7 @@ std::string MergeShardCsvs(const SweepPlan& plan, const std::vector<std::string>
   std::vector<std::string> duplicated, unknown;
   for (const std::string& path : shard_paths) {
     const CsvTable table = ReadCsvFile(path);
-    if (table.header != header) {
-      throw InputError(path, 1, "",
-                       "header differs from the sweep's columns (" + std::to_string(header.size()) +
-                           " columns starting id, " + header[1] + "); is it a shard of " +
-                           plan.file.path + "?");
-    }
+    CheckRowsBelong(plan, table, path, MergeHint(plan));
     for (const std::vector<std::string>& row : table.rows) {
       auto it = index_of.find(row.front());
       if (it == index_of.end()) {

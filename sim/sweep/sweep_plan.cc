@@ -3,19 +3,17 @@
 
 #include <charconv>
 #include <cstdint>
-#include <cstdio>
 #include <cstdlib>
 
 #include "common/error.h"
+#include "common/fnv1a.h"
 #include "config/config_loader.h"
+#include "config/energy_table.h"
 #include "energy/area_model.h"
-#include "energy/energy_table.h"
 
 namespace tritsim {
 namespace {
 
-constexpr uint64_t kFnvOffset = 14695981039346656037ull;  // FNV-1a 64-bit (Fowler, Noll, Vo)
-constexpr uint64_t kFnvPrime = 1099511628211ull;
 constexpr int kMinIdDigits = 4;
 
 // A candidate point before validation: the settings and where they came from.
@@ -94,16 +92,9 @@ void CheckOneSetting(const SweepFile& file, const SweepSetting& s, int line,
 }
 
 std::string Fingerprint(const std::vector<SweepSetting>& settings) {
-  uint64_t h = kFnvOffset;
-  for (const SweepSetting& s : settings) {
-    for (char c : s.key + "=" + s.value + "\n") {
-      h ^= static_cast<unsigned char>(c);
-      h *= kFnvPrime;
-    }
-  }
-  char buf[16];
-  std::snprintf(buf, sizeof buf, "%08x", static_cast<unsigned>(h & 0xffffffffu));
-  return buf;
+  uint64_t h = kFnv1aOffset;
+  for (const SweepSetting& s : settings) h = Fnv1a64(s.key + "=" + s.value + "\n", h);
+  return Hex64(h).substr(8);  // the low 32 bits
 }
 
 std::string PointId(size_t index, size_t count, const std::vector<SweepSetting>& settings) {
@@ -228,6 +219,7 @@ SweepPlan BuildSweepPlan(const SweepFile& file) {
   plan.file = file;
   plan.axis_keys = AxisKeys(file);
   CheckSettingsAlone(file);
+  plan.identity = IdentityOf(file);
   const std::vector<Candidate> candidates =
       file.axes.empty() ? ExplicitPoints(file, plan.axis_keys) : ExpandAxes(file);
   for (const Candidate& cand : candidates) {
@@ -253,7 +245,9 @@ SweepPlan BuildSweepPlan(const SweepFile& file) {
   }
   for (size_t i = 0; i < plan.points.size(); ++i) {
     plan.points[i].index = i;
-    plan.points[i].id = PointId(i, plan.points.size(), plan.points[i].settings);
+    SweepPoint& p = plan.points[i];
+    p.id = PointId(i, plan.points.size(), p.settings);
+    p.input_hash = InputHash(plan.identity, p.settings, p.workload);
   }
   return plan;
 }

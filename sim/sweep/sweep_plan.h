@@ -9,6 +9,7 @@
 
 #include "config/sweep_file.h"
 #include "config/workload_config.h"
+#include "sweep/sweep_identity.h"
 
 namespace tritsim {
 
@@ -23,6 +24,9 @@ struct SweepPoint {
   std::vector<SweepSetting> settings;  // the keys this point sets, in axis order
   WorkloadConfig workload;             // base workload with workload.* settings applied
   double area_mm2 = 0.0;               // EstimateArea of the point's architecture
+  // Hash of everything that decides the point's result (sweep_identity.h);
+  // unlike `id` it changes when a base file, the base workload or tritsim does.
+  std::string input_hash;
 };
 
 struct SweepPlan {
@@ -30,6 +34,7 @@ struct SweepPlan {
   std::vector<std::string> axis_keys;  // CSV axis columns: axes in file order (or point keys)
   std::vector<SweepPoint> points;      // in plan order (first axis slowest)
   size_t excluded = 0;                 // candidates removed by constraints
+  SweepIdentity identity;              // sweep name, version, base-file hashes
 };
 
 // Expands the axes (Cartesian product, first axis slowest) or takes the

@@ -15,15 +15,15 @@
 #include <map>
 #include <sstream>
 
-#include "report/gnuplot.h"
 #include "common/error.h"
+#include "report/gnuplot.h"
 
 namespace tritsim {
 namespace {
 
 namespace fs = std::filesystem;
 
-constexpr double kLogAxisSpan = 10.0;   // an axis spanning this factor or more is drawn log-scale
+constexpr double kLogAxisSpan = 10.0;  // an axis spanning this factor or more is drawn log-scale
 constexpr int kWidthPx = 800;
 constexpr int kHeightPx = 560;
 

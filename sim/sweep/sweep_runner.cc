@@ -5,6 +5,7 @@
 #include <signal.h>
 #include <sys/wait.h>
 #include <unistd.h>
+#include <nlohmann/json.hpp>
 
 #include <cerrno>
 #include <chrono>
@@ -221,8 +222,10 @@ SweepRunSummary RunSweepPoints(const SweepPlan& plan, const std::vector<const Sw
     const Running done = it->second;
     running.erase(it);
     fill();  // the next point starts before this row is synced to disk
-    const std::vector<std::string> row =
+    std::vector<std::string> row =
         PointRow(*done.point, status, ReadText(done.stderr_path), done.json_path);
+    const std::vector<std::string> identity = IdentityFields(plan, *done.point);
+    row.insert(row.end(), identity.begin(), identity.end());
     fs::remove(done.stderr_path, ec);
     journal.Append(row);
     ++summary.ran;

@@ -44,7 +44,8 @@ struct SweepRunSummary {
 SweepRunSummary RunSweepPoints(const SweepPlan& plan, const std::vector<const SweepPoint*>& todo,
                                const SweepRunOptions& options, SweepJournal& journal);
 
-// The CSV row of one point that finished with `wait_status` (as from
+// The CSV row of one point, up to json_path (the runner appends the
+// identity columns, sweep_identity.h), that finished with `wait_status` (as from
 // waitpid); `stderr_text` is what the child wrote on stderr. Reads the
 // point's JSON when the child succeeded; a missing or unreadable JSON makes
 // the row failed.

@@ -270,15 +270,16 @@ void CheckCountersFit(const TraceOp& op) {
   // a whole workload at 1e18 ops, so every trace it allows passes.
   constexpr long double kMaxProducts = 4e18L;
   const long double rows = static_cast<long double>(op.m);
-  long double products = rows * static_cast<long double>(op.n) *
-                         static_cast<long double>(std::max<int64_t>(op.k, 1));
+  long double products =
+      rows * static_cast<long double>(op.n) * static_cast<long double>(std::max<int64_t>(op.k, 1));
   if (IsAttention(op.kind)) {
     products = rows * static_cast<long double>(op.heads) * static_cast<long double>(op.head_dim) *
                static_cast<long double>(op.context);
   }
   if (products <= kMaxProducts) return;
-  throw LineError{"op", "m x n x k (or heads x head_dim x context per row) would overflow the "
-                        "engine's 64-bit counters; at most 4e18 products per op"};
+  throw LineError{"op",
+                  "m x n x k (or heads x head_dim x context per row) would overflow the "
+                  "engine's 64-bit counters; at most 4e18 products per op"};
 }
 
 // Parses an op line; phase and step come from the enclosing step.

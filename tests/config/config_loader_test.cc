@@ -1,6 +1,6 @@
 // The strict configuration layer: demo files load, defaults and presets
 // apply in the documented order, overrides win, DRAM presets match the
-// published values (REFERENCES.md), and every kind of bad input is a
+// published values (docs/references.md), and every kind of bad input is a
 // one-line error naming file, line, key and what is allowed, with the
 // documented exit code.
 #include "config/config_loader.h"
@@ -76,9 +76,9 @@ TEST(ConfigLoader, DemoDesignPointsPeakAtTheirStandardsBandwidth) {
   };
   // JESD79-4: one 64-bit DDR4-3200 channel, 25.6 GB/s (H).
   EXPECT_NEAR(peak("heron-edge-ddr4.yaml"), 25.6e9, 1e-3);
-  // JESD209-5 via REFERENCES.md: 4 x16 LPDDR5-6400 channels, 51.2 GB/s (M).
+  // JESD209-5 via docs/references.md: 4 x16 LPDDR5-6400 channels, 51.2 GB/s (M).
   EXPECT_NEAR(peak("finch-phone-lpddr5.yaml"), 51.2e9, 1e-3);
-  // JESD235 family via REFERENCES.md: one HBM2E stack at 3.6 Gb/s, 460.8 GB/s (H).
+  // JESD235 family via docs/references.md: one HBM2E stack at 3.6 Gb/s, 460.8 GB/s (H).
   EXPECT_NEAR(peak("osprey-card-hbm2e.yaml"), 460.8e9, 1e-2);
   EXPECT_NEAR(peak("ideal-memory.yaml"), 25.6e9, 1e-3);  // its stated fixed bandwidth
 }
@@ -201,13 +201,13 @@ TEST(DramPresets, Ddr4_3200ChannelPeaksAt25_6GBps) {
 }
 
 TEST(DramPresets, Hbm2eStackPeaksAt460_8GBps) {
-  // JESD235 family (REFERENCES.md): 16 x 64-bit pseudo-channels at 3.6 Gb/s
+  // JESD235 family (docs/references.md): 16 x 64-bit pseudo-channels at 3.6 Gb/s
   // per pin = 460.8 GB/s per stack (H).
   EXPECT_NEAR(DramPeakBytesPerSecond(Preset("hbm2e", 16)), 460.8e9, 460.8e9 * 1e-12);
 }
 
 TEST(DramPresets, Lpddr5FourX16ChannelsPeakAt51_2GBps) {
-  // JESD209-5 (REFERENCES.md): 12.8 GB/s per x16 channel, 51.2 GB/s per
+  // JESD209-5 (docs/references.md): 12.8 GB/s per x16 channel, 51.2 GB/s per
   // 64 bits (M).
   EXPECT_NEAR(DramPeakBytesPerSecond(Preset("lpddr5-6400", 4)), 51.2e9, 51.2e9 * 1e-12);
 }
@@ -220,7 +220,7 @@ TEST(DramPresets, IdealMemoryPeakIsItsConfiguredBandwidth) {
 
 TEST(DramPresets, Ddr4_3200TimingsMatchJedecNanoseconds) {
   const DramTiming t = Preset("ddr4-3200", 1).timing;
-  // JESD79-4 speed bin 3200AA (REFERENCES.md, H): tRCD = tRP = CL = 13.75 ns,
+  // JESD79-4 speed bin 3200AA (docs/references.md, H): tRCD = tRP = CL = 13.75 ns,
   // tRFC1 350 ns (8 Gb), tREFI 7.8 us, tRAS >= 32 ns.
   EXPECT_DOUBLE_EQ(t.tRCD * t.tCK_ns, 13.75);
   EXPECT_DOUBLE_EQ(t.tRP * t.tCK_ns, 13.75);
@@ -228,7 +228,7 @@ TEST(DramPresets, Ddr4_3200TimingsMatchJedecNanoseconds) {
   EXPECT_DOUBLE_EQ(t.tRFC * t.tCK_ns, 350.0);
   EXPECT_DOUBLE_EQ(t.tREFI * t.tCK_ns, 7800.0);
   EXPECT_GE(t.tRAS * t.tCK_ns, 32.0);
-  // REFERENCES.md: refresh alone takes tRFC / tREFI = 4.5% (H, arithmetic).
+  // docs/references.md: refresh alone takes tRFC / tREFI = 4.5% (H, arithmetic).
   EXPECT_NEAR(double(t.tRFC) / double(t.tREFI), 0.045, 0.0005);
 }
 
@@ -242,7 +242,7 @@ TEST(DramPresets, Lpddr5NanosecondValuesRoundUpToWholeCycles) {
   const DramTiming t = Preset("lpddr5-6400", 1).timing;
   // tCK in our two-transfers-per-tCK unit: 2 / 6400 MT/s (JESD209-5; H).
   EXPECT_DOUBLE_EQ(t.tCK_ns, 0.3125);
-  // REFERENCES.md LPDDR5-6400 (L, from memory): tRCD 18, tRPpb 18, tRAS 42,
+  // docs/references.md LPDDR5-6400 (L, from memory): tRCD 18, tRPpb 18, tRAS 42,
   // tFAW 20 ns, tREFI 3.9 us.
   ExpectCeilCycles(t.tRCD, t.tCK_ns, 18.0);
   ExpectCeilCycles(t.tRP, t.tCK_ns, 18.0);
@@ -396,7 +396,8 @@ const BadCase kBadCases[] = {
      "arch_zero_bandwidth.yaml",
      nullptr,
      {},
-     "arch_zero_bandwidth.yaml:4: dram.ideal_bandwidth_gbps: must be a number in [0.01, 1000000], got "
+     "arch_zero_bandwidth.yaml:4: dram.ideal_bandwidth_gbps: must be a number in [0.01, 1000000], "
+     "got "
      "0"},
     {"NotANumber",
      Kind::kArch,
@@ -509,7 +510,8 @@ const BadCase kBadCases[] = {
      "arch_trefi_not_above_trfc.yaml",
      nullptr,
      {},
-     "arch_trefi_not_above_trfc.yaml:5: dram.timing.tREFI: tREFI (560) must be at least twice tRFC"},
+     "arch_trefi_not_above_trfc.yaml:5: dram.timing.tREFI: tREFI (560) must be at least twice "
+     "tRFC"},
     {"BadBurstLength",
      Kind::kArch,
      "arch_bad_burst_length.yaml",

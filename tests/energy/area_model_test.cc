@@ -1,5 +1,5 @@
 // Area model, checked against published bitcell and logic areas
-// (REFERENCES.md) and its documented scaling rules.
+// (docs/references.md) and its documented scaling rules.
 #include "energy/area_model.h"
 
 #include <gtest/gtest.h>

@@ -1,5 +1,5 @@
 // Energy table and energy model, checked against published per-op energies
-// (REFERENCES.md) and against their own documented pricing rules.
+// (docs/references.md) and against their own documented pricing rules.
 #include "energy/energy_model.h"
 
 #include <gtest/gtest.h>
@@ -8,8 +8,8 @@
 #include <string>
 
 #include "common/error.h"
+#include "config/energy_table.h"
 #include "energy/area_model.h"
-#include "energy/energy_table.h"
 
 namespace tritsim {
 namespace {
@@ -42,7 +42,7 @@ std::string ErrorMessage(const EnergyConfig& energy, const std::string& preset) 
 }
 
 // Fraction of zero trits left by absmean quantization of Gaussian weights:
-// erf(1/(2 sqrt(pi))) = 0.31006 (derivation in REFERENCES.md).
+// erf(1/(2 sqrt(pi))) = 0.31006 (derivation in docs/references.md).
 const double kGaussianZeroFraction = std::erf(1.0 / (2.0 * std::sqrt(std::acos(-1.0))));
 
 TEST(EnergyModel, Fp16MultAddOverInt8AddIs71xAt7nm) {
@@ -82,7 +82,7 @@ TEST(EnergyModel, ZeroGatingSavesTheZeroFractionOfTheInputAdders) {
 
   // The gateable energy is one int8 add per weight use (Wang et al. 2023:
   // a ternary GEMM does one int8 add per weight); gating saves the zero
-  // fraction of it, erf(1/(2 sqrt(pi))) for Gaussian weights (REFERENCES.md).
+  // fraction of it, erf(1/(2 sqrt(pi))) for Gaussian weights (docs/references.md).
   double gateable = double(run.events.weight_uses) * t.pj("int8_add") * 1e-12;
   EXPECT_NEAR((ungated - gated) / gateable, kGaussianZeroFraction, 1e-6);
   // Without gating the zeros cost exactly what non-zeros do.
@@ -172,7 +172,7 @@ TEST(EnergyModel, HbmStreamingEnergyIsBitsTimesPjPerBitPlusCommands) {
 
 TEST(EnergyModel, DdrAndLpddrPerBitInPublishedRanges) {
   EnergyConfig energy;
-  // DDR4 about 15 - 20 pJ/bit, LPDDR4/5 about 4 - 8 pJ/bit (REFERENCES.md, L).
+  // DDR4 about 15 - 20 pJ/bit, LPDDR4/5 about 4 - 8 pJ/bit (docs/references.md, L).
   double ddr4 = ResolveEnergyTable(energy, "ddr4-3200").pj("dram_pj_per_bit");
   double lpddr5 = ResolveEnergyTable(energy, "lpddr5-6400").pj("dram_pj_per_bit");
   EXPECT_GE(ddr4, 15.0);

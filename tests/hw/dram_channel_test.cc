@@ -2,7 +2,7 @@
 // refresh, multi-channel interleaving and the ideal memory.
 //
 // Outside-world values come from JEDEC JESD79-4 (DDR4) through
-// /work/shared/REFERENCES.md; the DramConfig defaults are the DDR4-3200AA
+// docs/references.md; the DramConfig defaults are the DDR4-3200AA
 // values, so expected times are derived here from the timing parameters and
 // the parameters themselves are checked once against the standard.
 #include <gtest/gtest.h>
@@ -26,7 +26,7 @@ constexpr uint64_t kMiB = uint64_t{1} << 20;
 constexpr double kPsPerSecond = 1e12;
 constexpr int64_t kDeepWindow = 64;  // requests in flight for streaming tests
 
-// DDR4-3200, JESD79-4 (H, via REFERENCES.md): 3200 MT/s x 8 B = 25.6 GB/s.
+// DDR4-3200, JESD79-4 (H, via docs/references.md): 3200 MT/s x 8 B = 25.6 GB/s.
 constexpr double kDdr4_3200PeakBytesPerSecond = 25.6e9;
 
 class DramTest : public ::testing::Test {
@@ -76,7 +76,7 @@ class DramTest : public ::testing::Test {
 
 TEST_F(DramTest, DramDefaultsAreJedecDdr4_3200) {
   const DramConfig d = Ddr4();
-  // JESD79-4 DDR4-3200AA (H, via REFERENCES.md): tCK 0.625 ns, CL = tRCD = tRP
+  // JESD79-4 DDR4-3200AA (H, via docs/references.md): tCK 0.625 ns, CL = tRCD = tRP
   // = 13.75 ns, tRAS 32 ns, tRC 45.75 ns, tRFC1 350 ns (8 Gb), tREFI 7.8 us.
   EXPECT_EQ(Tck(d), 625u);
   EXPECT_EQ(Ps(d, d.timing.tRCD), 13750u);

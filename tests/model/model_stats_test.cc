@@ -30,23 +30,23 @@ double RelativeError(double value, double expected) {
 
 TEST(ModelStats, SevenBillionShapeMatchesPublishedCount) {
   const ModelStats s = ComputeModelStats(PublishedShape(4096, 32, 11008));
-  // Touvron et al. 2023 (REFERENCES.md, M): about 6.74e9 parameters. The
+  // Touvron et al. 2023 (docs/references.md, M): about 6.74e9 parameters. The
   // published figure is rounded to three digits, hence 0.5%.
   EXPECT_LT(RelativeError(s.parameters.total(), 6.74e9), 0.005);
 }
 
 TEST(ModelStats, ThirteenBillionShapeMatchesPublishedCount) {
   const ModelStats s = ComputeModelStats(PublishedShape(5120, 40, 13824));
-  // Touvron et al. 2023 (REFERENCES.md, M): about 13.0e9 parameters.
+  // Touvron et al. 2023 (docs/references.md, M): about 13.0e9 parameters.
   EXPECT_LT(RelativeError(s.parameters.total(), 13.0e9), 0.005);
 }
 
 TEST(ModelStats, Base3PacksFiveTritsPerByte) {
   // 3^5 = 243 <= 256 < 3^6 = 729: five trits fit a byte, six do not
-  // (REFERENCES.md, H, arithmetic).
+  // (docs/references.md, H, arithmetic).
   EXPECT_LE(std::pow(3.0, 5.0), 256.0);
   EXPECT_GT(std::pow(3.0, 6.0), 256.0);
-  // 8 bits / 5 trits = 1.6 bits per trit (REFERENCES.md, H).
+  // 8 bits / 5 trits = 1.6 bits per trit (docs/references.md, H).
   EXPECT_DOUBLE_EQ(WeightBits(WeightFormat::kTernary, ArrayKind::kTernary, TritPacking::kBase3),
                    1.6);
   EXPECT_DOUBLE_EQ(WeightBits(WeightFormat::kTernary, ArrayKind::kTernary, TritPacking::kTwoBit),
@@ -55,7 +55,7 @@ TEST(ModelStats, Base3PacksFiveTritsPerByte) {
 
 TEST(ModelStats, PackingDensityAgainstInformationBound) {
   // log2(3) = 1.58496 bits per trit; base-3 reaches 99.06% of it and a 2-bit
-  // code 79.2% (REFERENCES.md, H, arithmetic).
+  // code 79.2% (docs/references.md, H, arithmetic).
   const double ideal_bits = std::log2(3.0);
   EXPECT_NEAR(ideal_bits, 1.58496, 1e-5);
   EXPECT_NEAR(ideal_bits / (8.0 * BytesPerTrit(TritPacking::kBase3)), 0.9906, 5e-5);

@@ -3,6 +3,7 @@
 // value just beyond a cap must be rejected at load time with a message
 // naming the key and the allowed range, never clamped or wrapped.
 #include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
 
 #include <cmath>
 #include <cstdint>

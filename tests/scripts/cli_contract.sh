@@ -5,24 +5,8 @@
 set -u
 bin="$1"
 src="$2"
-tmp="$(mktemp -d)"
-trap 'rm -rf "$tmp"' EXIT
-failures=0
-fail() { echo "FAIL: $*"; failures=$((failures + 1)); }
-
-expect_exit() {  # expected_code description command...
-  local want="$1" what="$2"
-  shift 2
-  "$@" >"$tmp/out" 2>"$tmp/err"
-  local got=$?
-  [ "$got" -eq "$want" ] || fail "$what: exit $got, want $want ($(head -c 300 "$tmp/err"))"
-}
-
-one_line_error() {  # description
-  local lines
-  lines=$(wc -l <"$tmp/err")
-  [ "$lines" -eq 1 ] || fail "$1: stderr has $lines lines, want 1: $(cat "$tmp/err")"
-}
+# shellcheck source=lib/cli_checks.sh
+source "$src/tests/scripts/lib/cli_checks.sh"
 
 json_has() {  # file key.path...
   local file="$1"

@@ -5,7 +5,7 @@
 # run locally (every column but json_path). All daemon state lives under one
 # mktemp folder; every daemon started here is stopped by its PID on exit.
 # Prints "SKIP: ..." and exits 0 only where Slurm cannot be installed.
-# $1 = tritsim binary, $2 = source dir. Recipe: /work/shared/RECIPES.md.
+# $1 = tritsim binary, $2 = source dir. Recipe: the comments below (common practice for a test-local cluster).
 set -euo pipefail
 TRITSIM=$(readlink -f "$1")
 SRC=$(readlink -f "$2")

@@ -5,12 +5,14 @@
 #include <gtest/gtest.h>
 #include <stdlib.h>
 #include <unistd.h>
+#include <nlohmann/json.hpp>
 
 #include <filesystem>
 #include <fstream>
 #include <sstream>
 
 #include "common/error.h"
+#include "sweep/sweep_identity.h"
 #include "sweep/sweep_journal.h"
 
 namespace tritsim {
@@ -66,8 +68,9 @@ TEST(SweepCsv, HeaderHasAxesBetweenIdAndStatus) {
   EXPECT_EQ(h[2], "workload.batch");
   EXPECT_EQ(h[3], "status");
   EXPECT_EQ(h[4], "error");
-  EXPECT_EQ(h.back(), "json_path");
-  EXPECT_EQ(h.size(), 2 + 2 + MetricColumns().size() + 2);
+  EXPECT_EQ(h[4 + MetricColumns().size() + 1], "json_path");
+  EXPECT_EQ(h.back(), "input_hash");  // then the identity columns (sweep_identity.h)
+  EXPECT_EQ(h.size(), 2 + 2 + MetricColumns().size() + 2 + IdentityColumns().size());
 }
 
 TEST(SweepCsv, MetricsComeFromTheRunJson) {

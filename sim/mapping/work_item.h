@@ -8,7 +8,7 @@
 
 #include <cstdint>
 
-#include "engine/run_result.h"
+#include "trace/trace_op.h"
 
 namespace tritsim {
 
@@ -16,6 +16,27 @@ enum class Unit { kTreeArray, kVectorUnit };
 
 // What a load brings in, for address assignment and statistics.
 enum class LoadKind { kNone, kWeights, kActivations, kKvCache };
+
+// The computation of one tile, as the tiler cut it. Plain shape data: which
+// cycles and events it costs is the business of the unit that runs it.
+struct TileWork {
+  bool computes = false;        // false: a load-only item (no compute at all)
+  OpKind kind = OpKind::kGemm;  // the op the tile belongs to
+  // GEMM tiles: `rows` activation rows of length `k` against a k x n weight tile.
+  uint64_t rows = 0;
+  uint64_t k = 0;
+  uint64_t n = 0;
+  double weight_bits = 0.0;   // stored bits per weight (1.6 for base-3 trits)
+  uint64_t weight_bytes = 0;  // packed bytes of the weight tile
+  bool ternary_weights = false;
+  double zero_fraction = 0.0;  // share of zero trits (energy of gated adders)
+  uint64_t act_bytes = 1;      // bytes per activation
+  // Vector tiles: elements (elementwise ops), scores (softmax) or products
+  // (attention) of this tile, and the operand bytes it reads once.
+  uint64_t elements = 0;
+  uint64_t read_bytes = 0;
+  bool drain = false;  // the op's last compute tile: add the unit's pipeline latency
+};
 
 struct WorkItem {
   int64_t op_index = 0;  // position of the op in the trace
@@ -35,15 +56,9 @@ struct WorkItem {
   uint64_t store_address = 0;
   uint64_t store_bytes = 0;
 
-  // Compute on `unit`, in core cycles, excluding scratchpad conflicts.
-  uint64_t compute_cycles = 0;
-  // Scratchpad bank accesses the unit makes while computing (for conflicts).
-  uint64_t sram_read_accesses = 0;
-
-  // Arithmetic and decoder events this item causes in its unit (the
-  // scratchpad and DRAM fields stay zero: the sequencer derives those from
-  // the item's accesses and transfers).
-  EventCounts events;
+  // What the tile asks of `unit`; the unit's cost model turns it into
+  // cycles and energy events (TreeArray::Cost, VectorUnit::Cost).
+  TileWork work;
 };
 
 }  // namespace tritsim

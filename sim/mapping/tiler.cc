@@ -1,10 +1,11 @@
-#include "engine/tiler.h"
+#include "mapping/tiler.h"
 
 #include <algorithm>
 #include <cmath>
 #include <sstream>
 
 #include "common/error.h"
+#include "common/int_math.h"
 #include "config/dram_presets.h"
 #include "model/model_stats.h"
 
@@ -18,20 +19,10 @@ constexpr uint64_t kKvBase = 1ull << 40;
 constexpr uint64_t kKvLayerStride = 1ull << 34;
 constexpr uint64_t kSpillBase = 1ull << 41;
 constexpr uint64_t kSpillStride = 1ull << 36;  // input and output spill areas
+constexpr uint64_t kNormGainBytes = 2;         // RMSNorm gains are stored as 16-bit values
 
-uint64_t CeilDiv(uint64_t a, uint64_t b) { return (a + b - 1) / b; }
 uint64_t RoundDown(uint64_t a, uint64_t b) { return a / b * b; }
 uint64_t RoundUp(uint64_t a, uint64_t b) { return CeilDiv(a, b) * b; }
-
-uint64_t Log2Ceil(uint64_t x) {
-  uint64_t levels = 0;
-  while ((uint64_t(1) << levels) < x) ++levels;
-  return levels;
-}
-
-uint64_t BitsToBytes(uint64_t elements, double bits) {
-  return uint64_t(std::ceil(double(elements) * bits / 8.0 - 1e-9));
-}
 
 std::string OpLabel(const TraceOp& op) {
   std::ostringstream s;
@@ -82,7 +73,6 @@ HardwareRates ComputeRates(const ArchConfig& arch) {
   const uint64_t capacity = uint64_t(arch.sram.capacity_kib) * 1024;
   r.activation_bytes = capacity / 2;
   r.slot_bytes = capacity / 4;
-  r.pipeline_depth = Log2Ceil(uint64_t(arch.array.fan_in)) + uint64_t(arch.array.register_cut);
   r.array_ops_per_cycle = 2.0 * double(arch.array.trees) * double(arch.array.fan_in);
   r.vector_ops_per_cycle = 2.0 * double(arch.vector.lanes);
   r.dram_bytes_per_cycle = DramPeakBytesPerSecond(arch.dram) * double(r.core_period_ps) * 1e-12;
@@ -175,7 +165,14 @@ void Tiler::Plan(const TraceOp& op, const TraceStep& step, int64_t op_index,
     case OpKind::kAttnValues:
       PlanAttention(op, step, op_index, out);
       break;
-    default:
+    case OpKind::kEmbed:
+    case OpKind::kNorm:
+    case OpKind::kQuantize:
+    case OpKind::kRope:
+    case OpKind::kKvAppend:
+    case OpKind::kSoftmax:
+    case OpKind::kActivation:
+    case OpKind::kResidual:
       PlanElementwise(op, step, op_index, out);
       break;
   }
@@ -194,9 +191,6 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
   const bool on_array = unit == Unit::kTreeArray;
   const uint64_t m = uint64_t(op.m), n = uint64_t(op.n), k = uint64_t(op.k);
   const double weight_bits = WeightBits(op.weights, arch_.array.kind, arch_.packing.format);
-  const bool decoded = on_array && op.weights == WeightFormat::kTernary &&
-                       arch_.array.kind == ArrayKind::kTernary &&
-                       arch_.packing.format == TritPacking::kBase3;
   // Array tiles are whole passes: F rows of K by T columns of N. The vector
   // unit takes any shape, one weight column at a time.
   const uint64_t fan = on_array ? uint64_t(arch_.array.fan_in) : 1;
@@ -213,73 +207,50 @@ void Tiler::PlanGemm(const TraceOp& op, int64_t op_index, std::vector<WorkItem>&
                                                    trees)));
   const uint64_t act_bytes = uint64_t(op.act_bits) / 8;
   const ActivationPlan acts = PlanActivations(op, k * act_bytes, n * act_bytes);
-  const uint64_t weight_total = BitsToBytes(k * n, weight_bits);
-  const uint64_t weight_base = WeightAddress(op, weight_total);
-  const uint64_t sram_bytes_per_cycle =
-      uint64_t(arch_.sram.banks) * uint64_t(arch_.sram.bank_width_bytes);
-  const uint64_t bank_width = uint64_t(arch_.sram.bank_width_bytes);
+  const uint64_t weight_base = WeightAddress(op, BitsToBytes(k * n, weight_bits));
 
+  TileWork work;
+  work.computes = true;
+  work.kind = op.kind;
+  work.weight_bits = weight_bits;
+  work.ternary_weights = op.weights == WeightFormat::kTernary;
+  work.zero_fraction = op.zero_fraction;
+  work.act_bytes = act_bytes;
   for (uint64_t m0 = 0; m0 < m; m0 += acts.rows_per_tile) {
-    const uint64_t mt = std::min(acts.rows_per_tile, m - m0);
+    work.rows = std::min(acts.rows_per_tile, m - m0);
     if (acts.input_from_dram) {
       WorkItem load;
       load.op_index = op_index;
       load.unit = unit;
       load.load_kind = LoadKind::kActivations;
       load.load_address = kSpillBase + m0 * k * act_bytes;
-      load.load_bytes = mt * k * act_bytes;
+      load.load_bytes = work.rows * k * act_bytes;
       load.load_after_stores = true;
       out.push_back(load);
     }
     for (uint64_t n0 = 0; n0 < n; n0 += n_tile) {
-      const uint64_t nn = std::min(n_tile, n - n0);
+      work.n = std::min(n_tile, n - n0);
       for (uint64_t k0 = 0; k0 < k; k0 += k_tile) {
-        const uint64_t kk = std::min(k_tile, k - k0);
+        work.k = std::min(k_tile, k - k0);
+        work.weight_bytes = BitsToBytes(work.k * work.n, weight_bits);
         WorkItem item;
         item.op_index = op_index;
         item.unit = unit;
-        const uint64_t tile_bytes = BitsToBytes(kk * nn, weight_bits);
+        item.work = work;
         if (!options_.weights_resident) {
           item.load_kind = LoadKind::kWeights;
-          item.load_bytes = tile_bytes;
-          item.load_address = weight_base + BitsToBytes(n0 * k + k0 * nn, weight_bits);
+          item.load_bytes = work.weight_bytes;
+          item.load_address = weight_base + BitsToBytes(n0 * k + k0 * work.n, weight_bits);
         }
-        const uint64_t passes = CeilDiv(nn, trees) * CeilDiv(kk, fan);
-        const uint64_t uses = mt * kk * nn;  // activation x weight products
-        if (on_array) {
-          item.events.weight_uses = uses;
-          // One pass streams the mt rows through trees holding F x T weights;
-          // the next pass's weights are fetched (and decoded) meanwhile.
-          uint64_t pass_cycles = std::max<uint64_t>(mt, CeilDiv(pass_bytes, sram_bytes_per_cycle));
-          if (decoded) {
-            pass_cycles = std::max<uint64_t>(
-                pass_cycles, CeilDiv(pass_bytes, uint64_t(arch_.packing.decoder_bytes_per_cycle)));
-            item.events.decoder_bytes = tile_bytes;
-          }
-          item.compute_cycles = passes * pass_cycles;
-          item.events.weight_uses_zero =
-              op.weights == WeightFormat::kTernary
-                  ? uint64_t(std::llround(double(item.events.weight_uses) * op.zero_fraction))
-                  : 0;
-          item.events.accumulator_adds = mt * nn * CeilDiv(kk, fan);
-        } else {
-          // The vector unit's products are MACs, not array weight uses.
-          item.compute_cycles = CeilDiv(uses, uint64_t(arch_.vector.lanes));
-          item.events.vector_macs = uses;
-        }
-        item.sram_read_accesses = CeilDiv(tile_bytes, bank_width) +
-                                  CeilDiv(mt * kk * act_bytes, bank_width) * CeilDiv(nn, trees);
-        if (acts.output_to_dram && k0 + kk >= k) {
-          item.store_address = kSpillBase + kSpillStride + (m0 * n + n0 * mt) * act_bytes;
-          item.store_bytes = mt * nn * act_bytes;
+        if (acts.output_to_dram && k0 + work.k >= k) {
+          item.store_address = kSpillBase + kSpillStride + (m0 * n + n0 * work.rows) * act_bytes;
+          item.store_bytes = work.rows * work.n * act_bytes;
         }
         out.push_back(item);
       }
     }
   }
-  // The last pass drains through the adder pipeline (or the vector pipeline).
-  out.back().compute_cycles +=
-      on_array ? rates_.pipeline_depth : uint64_t(arch_.vector.pipeline_cycles);
+  out.back().work.drain = true;  // the last pass drains through the unit's pipeline
 }
 
 void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_index,
@@ -295,8 +266,6 @@ void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_i
   const uint64_t vectors = batch * uint64_t(op.kv_heads) * context;
   const uint64_t vectors_per_tile = std::min(vectors, rates_.slot_bytes / vector_bytes);
   const uint64_t macs = uint64_t(op.heads) * uint64_t(op.head_dim) * AllRowKeys(op, step);
-  const uint64_t lanes = uint64_t(arch_.vector.lanes);
-  const uint64_t bank_width = uint64_t(arch_.sram.bank_width_bytes);
   const uint64_t half = op.kind == OpKind::kAttnValues ? kKvLayerStride / 2 : 0;
   for (uint64_t v0 = 0; v0 < vectors; v0 += vectors_per_tile) {
     const uint64_t count = std::min(vectors_per_tile, vectors - v0);
@@ -307,91 +276,66 @@ void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_i
     item.load_address = KvAddress(op) + half + v0 * vector_bytes;
     item.load_bytes = count * vector_bytes;
     item.load_after_stores = v0 == 0;  // the cache holds this step's appended keys
-    item.events.vector_macs = ShareOf(macs, v0, v0 + count, vectors);
-    item.compute_cycles = CeilDiv(item.events.vector_macs, lanes);
-    item.sram_read_accesses = CeilDiv(item.load_bytes, bank_width);
+    item.work.computes = true;
+    item.work.kind = op.kind;
+    item.work.elements = ShareOf(macs, v0, v0 + count, vectors);
+    item.work.read_bytes = item.load_bytes;
     out.push_back(item);
   }
-  out.back().compute_cycles += uint64_t(arch_.vector.pipeline_cycles);
+  out.back().work.drain = true;
+}
+
+// Vector work of an elementwise op: one per element, but one per attention
+// score for softmax.
+uint64_t Tiler::ElementwiseCount(const TraceOp& op, const TraceStep& step) {
+  if (op.kind == OpKind::kSoftmax) return uint64_t(op.heads) * AllRowKeys(op, step);
+  return uint64_t(op.m) * uint64_t(op.n);
+}
+
+// Operands an elementwise op loads or stores beside its activations: the
+// embedding rows, the norm gains, the appended KV entries.
+void Tiler::PlanElementwiseTransfers(const TraceOp& op, const TraceStep& step, WorkItem& item) {
+  const uint64_t elements = uint64_t(op.m) * uint64_t(op.n);
+  if (op.kind == OpKind::kEmbed) {
+    // One table row per token; rows laid out in token order (token ids are
+    // not in the trace).
+    item.load_kind = LoadKind::kWeights;
+    item.load_bytes =
+        BitsToBytes(elements, WeightBits(op.weights, ArrayKind::kInt8Mac, arch_.packing.format));
+    item.load_address = WeightAddress(op, item.load_bytes);
+  } else if (op.kind == OpKind::kNorm) {
+    item.load_kind = LoadKind::kWeights;
+    item.load_bytes = uint64_t(op.n) * kNormGainBytes;
+    item.load_address = WeightAddress(op, item.load_bytes);
+  } else if (op.kind == OpKind::kKvAppend) {
+    item.store_address =
+        KvAddress(op) +
+        uint64_t(std::max<int64_t>(0, step.context)) *
+            BitsToBytes(uint64_t(op.n) / 2 * uint64_t(std::max<int64_t>(1, step.batch)),
+                        double(op.kv_bits));
+    item.store_bytes = BitsToBytes(elements, double(op.kv_bits));
+  }
 }
 
 void Tiler::PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op_index,
                             std::vector<WorkItem>& out) {
-  const uint64_t m = uint64_t(op.m), n = uint64_t(op.n);
-  const uint64_t elements = m * n;
-  const uint64_t lanes = uint64_t(arch_.vector.lanes);
-  const uint64_t special = uint64_t(arch_.vector.special_per_cycle);
+  const uint64_t elements = uint64_t(op.m) * uint64_t(op.n);
   const uint64_t act_bytes = uint64_t(op.act_bits) / 8;
-  const uint64_t bank_width = uint64_t(arch_.sram.bank_width_bytes);
   WorkItem item;
   item.op_index = op_index;
   item.unit = Unit::kVectorUnit;
-  switch (op.kind) {
-    case OpKind::kEmbed:
-      // One table row per token; rows laid out in token order (token ids are
-      // not in the trace), converted to activations at one element per lane.
-      item.load_kind = LoadKind::kWeights;
-      item.load_bytes =
-          BitsToBytes(elements, WeightBits(op.weights, ArrayKind::kInt8Mac, arch_.packing.format));
-      item.load_address = WeightAddress(op, item.load_bytes);
-      item.events.vector_elementwise = elements;
-      item.compute_cycles = CeilDiv(elements, lanes);
-      break;
-    case OpKind::kNorm:
-      // RMSNorm: sum of squares (MACs), one rsqrt per row, scale by the gains.
-      item.load_kind = LoadKind::kWeights;
-      item.load_bytes = n * 2;
-      item.load_address = WeightAddress(op, item.load_bytes);
-      item.events.vector_macs = elements;
-      item.events.vector_elementwise = elements;
-      item.events.vector_special = m;
-      item.compute_cycles = CeilDiv(2 * elements, lanes) + CeilDiv(m, special);
-      break;
-    case OpKind::kQuantize:
-      // Absmax per row, one reciprocal per row, scale and round each element.
-      item.events.vector_elementwise = 2 * elements;
-      item.events.vector_special = m;
-      item.compute_cycles = CeilDiv(2 * elements, lanes) + CeilDiv(m, special);
-      break;
-    case OpKind::kRope:
-      item.events.vector_macs = 2 * elements;
-      item.compute_cycles = CeilDiv(2 * elements, lanes);
-      break;
-    case OpKind::kKvAppend:
-      item.events.vector_elementwise = elements;
-      item.compute_cycles = CeilDiv(elements, lanes);
-      item.store_address =
-          KvAddress(op) +
-          uint64_t(std::max<int64_t>(0, step.context)) *
-              BitsToBytes(uint64_t(op.n) / 2 * uint64_t(std::max<int64_t>(1, step.batch)),
-                          double(op.kv_bits));
-      item.store_bytes = BitsToBytes(elements, double(op.kv_bits));
-      break;
-    case OpKind::kSoftmax: {
-      const uint64_t scores = uint64_t(op.heads) * AllRowKeys(op, step);
-      item.events.vector_special = scores;
-      item.events.vector_elementwise = scores;
-      item.compute_cycles = CeilDiv(scores, special) + CeilDiv(scores, lanes);
-      break;
-    }
-    case OpKind::kActivation:
-      item.events.vector_special = elements;
-      item.events.vector_elementwise = elements;
-      item.compute_cycles = CeilDiv(elements, special) + CeilDiv(elements, lanes);
-      break;
-    case OpKind::kResidual:
-      item.events.vector_elementwise = elements;
-      item.compute_cycles = CeilDiv(elements, lanes);
-      break;
-    default:
-      break;
-  }
-  item.compute_cycles += uint64_t(arch_.vector.pipeline_cycles);
-  item.sram_read_accesses = CeilDiv(elements * act_bytes, bank_width);
+  item.work.computes = true;
+  item.work.kind = op.kind;
+  item.work.rows = uint64_t(op.m);
+  item.work.elements = ElementwiseCount(op, step);
+  item.work.read_bytes = elements * act_bytes;
+  item.work.drain = true;
+  PlanElementwiseTransfers(op, step, item);
   if (op.kind != OpKind::kEmbed && op.kind != OpKind::kKvAppend && op.kind != OpKind::kSoftmax) {
     // Elementwise ops keep the shape; spilled activations stream through.
     const bool from_dram = activations_in_dram_;
-    const ActivationPlan acts = PlanActivations(op, n * act_bytes, n * act_bytes);
+    const ActivationPlan acts =
+        PlanActivations(op, uint64_t(op.n) * act_bytes, uint64_t(op.n) * act_bytes);
     if (from_dram || acts.output_to_dram) {
       WorkItem load;
       load.op_index = op_index;

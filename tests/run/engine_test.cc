@@ -10,9 +10,9 @@
 #include "common/error.h"
 #include "config/config_loader.h"
 #include "config/dram_presets.h"
-#include "engine/simulation.h"
-#include "engine/vector_trace.h"
 #include "model/trace_builder.h"
+#include "run/simulation.h"
+#include "run/vector_trace.h"
 
 namespace tritsim {
 namespace {
@@ -130,7 +130,7 @@ TEST(EngineExactness, OnChipGemmTakesTheClosedFormCycleCount) {
   ExpectStallsSumToTotal(run);
 }
 
-// JESD79-4 (REFERENCES.md): a 64-bit DDR4-3200 channel peaks at 25.6 GB/s.
+// JESD79-4 (docs/references.md): a 64-bit DDR4-3200 channel peaks at 25.6 GB/s.
 // A weight stream through the whole engine (DMA, scratchpad slots, DRAM
 // scheduler) stays under it and sustains at least 85% of it; refresh takes
 // tRFC/tREFI = 350 ns / 7.8 us = 4.5% of the time, within 0.5 points.

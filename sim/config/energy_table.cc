@@ -1,4 +1,4 @@
-#include "energy/energy_table.h"
+#include "config/energy_table.h"
 
 #include <algorithm>
 #include <cmath>

@@ -7,8 +7,8 @@
 #pragma once
 
 #include "config/arch_config.h"
-#include "engine/run_result.h"
-#include "engine/sim_options.h"
+#include "mapping/sim_options.h"
+#include "results/run_result.h"
 #include "trace/trace_source.h"
 
 namespace tritsim {

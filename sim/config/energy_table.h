@@ -4,7 +4,7 @@
 // A table maps entry names (e.g. "int8_add", "sram_64bit_32kib") to pJ per
 // event; "leakage_mw_per_mm2" is in mW per mm^2 and the "*_pj_per_bit"
 // entries are pJ per bit moved. Every built-in value names its published
-// source and confidence (H/M/L as in REFERENCES.md) in energy_table.cc.
+// source and confidence (H/M/L as in docs/references.md) in energy_table.cc.
 #pragma once
 
 #include <map>

@@ -1,4 +1,4 @@
-#include "report/vcd_writer.h"
+#include "results/activity_log.h"
 
 #include <algorithm>
 #include <sstream>

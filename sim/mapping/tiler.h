@@ -1,7 +1,8 @@
-// Maps trace ops onto the hardware: chooses tiles that fit the scratchpad,
-// decides what stays on chip and what spills to DRAM, and gives each tile
-// its DRAM traffic, compute cycles and energy events. Plain C++; the
-// sequencer module drives it.
+// Maps trace ops onto the hardware: cuts each op into tiles that fit the
+// scratchpad, decides what stays on chip and what spills to DRAM, and lays
+// the tensors out in DRAM. Each tile says what it computes (TileWork); the
+// unit that runs it decides the cycles and events. Plain C++; the sequencer
+// module drives it.
 //
 // Scratchpad split (a fixed policy, documented in docs/engine.md): half the
 // capacity holds the live activations of the current op; the other half is
@@ -16,8 +17,8 @@
 #include <vector>
 
 #include "config/arch_config.h"
-#include "engine/sim_options.h"
-#include "engine/work_item.h"
+#include "mapping/sim_options.h"
+#include "mapping/work_item.h"
 #include "trace/trace_op.h"
 
 namespace tritsim {
@@ -27,7 +28,6 @@ struct HardwareRates {
   uint64_t core_period_ps = 1000;   // core clock period, rounded to 1 ps
   uint64_t slot_bytes = 0;          // one double-buffer slot
   uint64_t activation_bytes = 0;    // activation region
-  uint64_t pipeline_depth = 0;      // ceil(log2 F) adder levels + register cut
   double array_ops_per_cycle = 0;   // 2 T F (one add per weight use counts as 2 ops)
   double vector_ops_per_cycle = 0;  // 2 L
   double dram_bytes_per_cycle = 0;  // peak DRAM bandwidth per core cycle
@@ -67,6 +67,8 @@ class Tiler {
                      std::vector<WorkItem>& out);
   void PlanElementwise(const TraceOp& op, const TraceStep& step, int64_t op_index,
                        std::vector<WorkItem>& out);
+  static uint64_t ElementwiseCount(const TraceOp& op, const TraceStep& step);
+  void PlanElementwiseTransfers(const TraceOp& op, const TraceStep& step, WorkItem& item);
   void CheckTileFits(const TraceOp& op, uint64_t needed_bytes, uint64_t capacity_bytes,
                      const char* what) const;
   uint64_t WeightAddress(const TraceOp& op, uint64_t bytes);

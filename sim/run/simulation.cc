@@ -1,4 +1,4 @@
-#include "engine/simulation.h"
+#include "run/simulation.h"
 
 #include <memory>
 
@@ -22,11 +22,38 @@ void QuietSystemC() {
   sc_report_handler::set_actions(sc_core::SC_FATAL, sc_core::SC_THROW);
 }
 
+// Passes the records of `inner` through and reports progress on each.
+class ProgressSource : public TraceSource {
+ public:
+  ProgressSource(TraceSource& inner, const std::function<void(const SimProgress&)>& report)
+      : inner_(inner), report_(report) {}
+  const TraceHeader& header() const override { return inner_.header(); }
+  bool next(TraceRecord& record) override {
+    if (!inner_.next(record)) return false;
+    if (record.is_step) {
+      progress_.phase = record.step.phase;
+      progress_.step = record.step.step;
+    } else {
+      ++progress_.ops_started;
+    }
+    progress_.simulated_seconds = sc_core::sc_time_stamp().to_seconds();
+    report_(progress_);
+    return true;
+  }
+
+ private:
+  TraceSource& inner_;
+  const std::function<void(const SimProgress&)>& report_;
+  SimProgress progress_;
+};
+
 RunResult Simulate(const ArchConfig& arch, TraceSource& trace, const SimOptions& options) {
   QuietSystemC();
   std::unique_ptr<Accelerator> top;
+  ProgressSource reporting(trace, options.on_progress);
+  TraceSource& source = options.on_progress ? static_cast<TraceSource&>(reporting) : trace;
   try {
-    top = std::make_unique<Accelerator>("accelerator", arch, options, trace);
+    top = std::make_unique<Accelerator>("accelerator", arch, options, source);
     sc_core::sc_start();
   } catch (const Error&) {
     throw;
@@ -40,6 +67,7 @@ RunResult Simulate(const ArchConfig& arch, TraceSource& trace, const SimOptions&
   RunResult result;
   result.arch_name = arch.name;
   result.model_name = trace.header().model;
+  result.weights_resident = options.weights_resident;
   top->Collect(result);
   if (top->activity()) WriteFileAtomically(options.vcd_path, top->activity()->ToVcd("accelerator"));
   return result;

@@ -97,6 +97,7 @@ struct PhaseResult {
 struct RunResult {
   std::string arch_name;
   std::string model_name;
+  bool weights_resident = false;  // SimOptions::weights_resident of the run
   double core_mhz = 0.0;
   uint64_t cycles = 0;  // total core cycles
   uint64_t sim_ps = 0;  // total simulated time, ps
