@@ -40,7 +40,8 @@ DramChannel::TimingPs DramChannel::ToPs(const DramTiming& t, uint64_t tck_ps) {
   return p;
 }
 
-DramChannel::DramChannel(const DramConfig& dram) {
+DramChannel::DramChannel(const DramConfig& dram, RowOpening opening)
+    : open_ahead_(opening == RowOpening::kAhead) {
   if (dram.bank_groups < 1 || dram.bank_groups > kMaxBankGroups || dram.banks_per_group < 1)
     throw InputError("architecture", 0, "dram.bank_groups",
                      "bank organisation out of range (1..16 groups, >= 1 bank per group)");
@@ -240,6 +241,14 @@ void DramChannel::OpenRowsAheadSlow(uint64_t now_ps, uint64_t horizon_ps) {
     earliest = std::min(earliest, OpenAheadFor(r, now_ps, last_pre_ps, last_act_ps));
   }
   ahead_retry_ps_ = earliest;
+}
+
+// A refresh already due is done first, as the next pick would do it (the
+// same refresh: nothing else issues in between).
+void DramChannel::ArrivedSlow(uint64_t now_ps) {
+  while (now_ps >= next_refresh_ps_) Refresh();
+  Account();
+  OpenRowsAhead(AlignUp(now_ps), pick_ok_ps_);
 }
 
 // The latest ACT ahead whose row could still serve a CAS before the refresh

@@ -34,7 +34,9 @@
 // deadline) it issues PRE / ACT, oldest request first, for queued requests
 // whose row is not open, as soon as tRP / tRAS / tRC / tRRD_S / tRRD_L /
 // tFAW allow, never closing a row that a queued request still hits (common
-// practice). So activates overlap the row-hit bursts of other banks.
+// practice). So activates overlap the row-hit bursts of other banks. A
+// request that arrives while the channel waits for its next pick gets its
+// PRE / ACT ahead from its arrival (Arrived), up to that pick.
 // Every command kind issues in time order, which keeps the "allowed from"
 // state below exact.
 // Simplifications (documented, deliberate): the command bus is not modelled
@@ -76,6 +78,11 @@ struct DramCommandTimes {
   uint64_t done_ps = 0;  // last data beat on the bus
 };
 
+// When the scheduler may open rows: ahead for any queued request while
+// other banks stream (the default, see the file comment), or in order, only
+// for the request it picks (a plain FR-FCFS controller; a baseline for tests).
+enum class RowOpening : uint8_t { kAhead, kInOrder };
+
 // What Pick() scheduled.
 struct DramPick {
   uint32_t tag = 0;
@@ -91,7 +98,7 @@ class DramChannel {
 
   // REQUIRES: `dram` validated (bank_groups <= kMaxBankGroups, positive
   // timing). Allocates the bank table and the queue once, here.
-  explicit DramChannel(const DramConfig& dram);
+  explicit DramChannel(const DramConfig& dram, RowOpening opening = RowOpening::kAhead);
 
   bool HasRoom() const { return queued_ < capacity_; }
   bool Empty() const { return queued_ == 0; }
@@ -136,10 +143,20 @@ class DramChannel {
     log_ = log;
     log_channel_ = channel;
   }
+  // A request has just been queued behind others at now_ps, while the
+  // channel waits for its next pick: opens its row ahead now (PRE / ACT up
+  // to that pick) instead of at the pick, as a controller deciding every
+  // clock would. REQUIRES: now_ps not earlier than the last pick or arrival.
+  void Arrived(uint64_t now_ps) {
+    if (open_ahead_ && now_ps < pick_ok_ps_) ArrivedSlow(now_ps);
+  }
+
   // No command this channel issues from now on is earlier than this, given
   // that no request arrives before `arrivals_from_ps` (for the command log).
+  // With rows opened ahead, an arrival may issue a PRE / ACT at once.
   uint64_t CommandFloorPs(uint64_t arrivals_from_ps) const {
-    const uint64_t decisions = Empty() ? std::max(pick_ok_ps_, arrivals_from_ps) : pick_ok_ps_;
+    uint64_t decisions = Empty() ? std::max(pick_ok_ps_, arrivals_from_ps) : pick_ok_ps_;
+    if (open_ahead_) decisions = std::min(decisions, AlignUp(arrivals_from_ps));
     return std::min(next_refresh_ps_, decisions);
   }
 
@@ -214,9 +231,11 @@ class DramChannel {
   void CloseRow(Bank& b);
   // Opening rows ahead (see the file comment); commands in [now_ps, horizon_ps].
   void OpenRowsAhead(uint64_t now_ps, uint64_t horizon_ps) {
-    if (unopened_ > 0 && horizon_ps >= ahead_retry_ps_) OpenRowsAheadSlow(now_ps, horizon_ps);
+    if (unopened_ > 0 && horizon_ps >= ahead_retry_ps_ && open_ahead_)
+      OpenRowsAheadSlow(now_ps, horizon_ps);
   }
   void OpenRowsAheadSlow(uint64_t now_ps, uint64_t horizon_ps);
+  void ArrivedSlow(uint64_t now_ps);
   uint64_t LastUsefulActPs() const;
   uint64_t OpenAheadFor(const DramRequest& r, uint64_t now_ps, uint64_t last_pre_ps,
                         uint64_t last_act_ps);
@@ -255,6 +274,7 @@ class DramChannel {
   uint64_t tck_ps_ = 1;
   EdgeTest edge_;  // for OnClockEdge
   bool closed_page_ = false;
+  bool open_ahead_ = true;  // RowOpening::kAhead
   uint32_t banks_per_group_ = 1;
 
   std::vector<Bank> banks_;

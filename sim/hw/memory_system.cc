@@ -42,7 +42,7 @@ void AddStats(DramStats& sum, const DramStats& s) {
 
 class DramMemory final : public MemorySystem {
  public:
-  explicit DramMemory(const DramConfig& dram);
+  DramMemory(const DramConfig& dram, RowOpening opening);
 
   uint64_t Transfer(uint64_t address, uint64_t bytes, bool is_write, uint64_t start_ps,
                     int64_t max_outstanding) override;
@@ -139,10 +139,10 @@ size_t RoundUpToPowerOfTwo(size_t n) {
   return p;
 }
 
-DramMemory::DramMemory(const DramConfig& dram)
+DramMemory::DramMemory(const DramConfig& dram, RowOpening opening)
     : map_(dram), banks_per_group_(static_cast<uint32_t>(dram.banks_per_group)) {
   channels_.reserve(static_cast<size_t>(dram.channels));
-  for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram);
+  for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram, opening);
   leaves_ = RoundUpToPowerOfTwo(channels_.size());
   tree_ps_.assign(2 * leaves_, DramChannel::kNever);
   tree_channel_.assign(2 * leaves_, 0);
@@ -181,7 +181,11 @@ void DramMemory::Arrive(Progress& p, uint64_t when_ps) {
   r.tag = static_cast<uint32_t>(p.slot);
   r.column = p.next.column;
   r.is_write = p.is_write;
-  if (was_empty) UpdatePick<kOneChannel>(channel);
+  if (was_empty) {
+    UpdatePick<kOneChannel>(channel);
+  } else {
+    queue.Arrived(when_ps);
+  }
   window_ps_[p.slot] = kUnknown;
   p.now_ps = when_ps;
   p.slot = p.slot + 1 == p.window ? 0 : p.slot + 1;
@@ -269,9 +273,9 @@ const DramStats& DramMemory::stats() const {
 
 }  // namespace
 
-std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram) {
+std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram, RowOpening opening) {
   if (dram.is_ideal()) return std::make_unique<IdealMemory>(dram);
-  return std::make_unique<DramMemory>(dram);
+  return std::make_unique<DramMemory>(dram, opening);
 }
 
 }  // namespace tritsim

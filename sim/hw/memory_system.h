@@ -14,6 +14,7 @@
 #include <memory>
 
 #include "config/arch_config.h"
+#include "hw/dram_channel.h"
 #include "hw/dram_command_log.h"
 #include "results/run_result.h"
 
@@ -46,6 +47,9 @@ class MemorySystem {
 };
 
 // REQUIRES: `dram` validated by the config loader (preset applied).
-std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram);
+// `opening` is for tests that compare against in-order row opening; the
+// simulator always opens rows ahead.
+std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram,
+                                               RowOpening opening = RowOpening::kAhead);
 
 }  // namespace tritsim
