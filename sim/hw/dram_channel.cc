@@ -87,7 +87,6 @@ void DramChannel::RemoveAt(size_t age) {
   for (size_t a = age; a > 0; --a) queue_[Slot(a)] = queue_[Slot(a - 1)];
   head_ = Slot(1);
   --queued_;
-  --counted_;  // only counted requests are picked
   if (age < unopened_from_) --unopened_from_;
 }
 
@@ -141,11 +140,17 @@ void DramChannel::CountKind(const DramRequest& r, DramCommandTimes& reported) {
   stats_.busy_ps += t_.burst;
 }
 
-// Counted requests to `row` of `bank` become hits.
+void DramChannel::QueuedUnopened(const DramRequest& r, size_t age) {
+  ++unopened_;
+  unopened_from_ = std::min(unopened_from_, age);
+  ahead_retry_ps_ = std::min(ahead_retry_ps_, AheadPs(r, 0));
+}
+
+// Queued requests to `row` of `bank` become hits.
 void DramChannel::OpenRow(uint32_t bank, uint64_t row) {
   Bank& b = banks_[bank];
   b.open_row = row;
-  for (size_t age = unopened_from_; age < counted_; ++age) {
+  for (size_t age = unopened_from_; age < queued_; ++age) {
     const DramRequest& r = At(age);
     if (r.bank == bank && r.row == row) {
       ++b.queued_hits;
@@ -230,7 +235,7 @@ void DramChannel::OpenRowsAheadSlow(uint64_t now_ps, uint64_t horizon_ps) {
   uint64_t earliest = kNever;
   bool all_hits = true;  // so far in the pass
   ++ahead_pass_;
-  for (size_t age = unopened_from_; age < counted_ && unopened_ > 0; ++age) {
+  for (size_t age = unopened_from_; age < queued_ && unopened_ > 0; ++age) {
     const DramRequest& r = At(age);
     Bank& b = banks_[r.bank];
     if (b.open_row == r.row) continue;
@@ -247,7 +252,6 @@ void DramChannel::OpenRowsAheadSlow(uint64_t now_ps, uint64_t horizon_ps) {
 // same refresh: nothing else issues in between).
 void DramChannel::ArrivedSlow(uint64_t now_ps) {
   while (now_ps >= next_refresh_ps_) Refresh();
-  Account();
   OpenRowsAhead(AlignUp(now_ps), pick_ok_ps_);
 }
 

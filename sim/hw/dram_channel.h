@@ -104,11 +104,16 @@ class DramChannel {
   bool Empty() const { return queued_ == 0; }
 
   // REQUIRES: HasRoom(); arrival_ps not earlier than any queued request's.
-  void Enqueue(const DramRequest& request) { Push() = request; }
+  void Enqueue(const DramRequest& request) {
+    DramRequest& slot = Push();
+    slot = request;
+    Queued(slot);
+  }
 
   // Appends an entry and returns it for the caller to fill in place (no
-  // copy). REQUIRES: HasRoom(); the caller fills every field before the next
-  // call on this channel, with the same arrival order rule as Enqueue.
+  // copy). REQUIRES: HasRoom(); the caller fills every field and calls
+  // Queued(entry) before any other call on this channel, with the same arrival
+  // order rule as Enqueue.
   DramRequest& Push() {
     DramRequest& slot = queue_[Slot(queued_)];
     ++queued_;
@@ -143,6 +148,17 @@ class DramChannel {
     log_ = log;
     log_channel_ = channel;
   }
+  // Counts `r`, the entry just filled in after Push: a hit on its bank's open
+  // row, or a request that needs its row opened.
+  void Queued(const DramRequest& r) {
+    Bank& b = banks_[r.bank];
+    if (b.open_row == r.row) {
+      ++b.queued_hits;
+    } else {
+      QueuedUnopened(r, queued_ - 1);
+    }
+  }
+
   // A request has just been queued behind others at now_ps, while the
   // channel waits for its next pick: opens its row ahead now (PRE / ACT up
   // to that pick) instead of at the pick, as a controller deciding every
@@ -207,21 +223,7 @@ class DramChannel {
   void CountAhead(Bank& b, DramCommandTimes& reported);
   void Refresh();
   void RemoveAt(size_t age);
-  // Counts requests that arrived since the last pick into queued_hits /
-  // unopened_.
-  void Account() {
-    for (; counted_ < queued_; ++counted_) {
-      const DramRequest& r = At(counted_);
-      Bank& b = banks_[r.bank];
-      if (b.open_row == r.row) {
-        ++b.queued_hits;
-      } else {
-        ++unopened_;
-        unopened_from_ = std::min(unopened_from_, counted_);
-        ahead_retry_ps_ = std::min(ahead_retry_ps_, AheadPs(r, 0));
-      }
-    }
-  }
+  void QueuedUnopened(const DramRequest& r, size_t age);
   // The request leaves the queue with its CAS (its row is open by then).
   void Leave(const DramRequest& r) {
     if (--banks_[r.bank].queued_hits == 0 && unopened_ > 0) ahead_retry_ps_ = 0;
@@ -291,11 +293,10 @@ class DramChannel {
   uint64_t wr_data_ok_ps_ = 0;                                      // earliest start of write data
   uint64_t next_refresh_ps_ = 0;                                    // next refresh deadline
   uint64_t pick_ok_ps_ = 0;  // first command of the last pick
-  // Row opening ahead: requests counted into the banks' queued_hits or into
-  // unopened_ (the oldest counted_ of the queue), and a time before which
-  // no PRE / ACT ahead can issue (0: look again).
-  size_t counted_ = 0;
-  size_t unopened_ = 0;       // counted requests whose row is not open
+  // Row opening ahead: every queued request is counted in its bank's
+  // queued_hits or in unopened_; and a time before which no PRE / ACT ahead
+  // can issue (0: look again).
+  size_t unopened_ = 0;       // queued requests whose row is not open
   size_t unopened_from_ = 0;  // requests older than this age are all hits
   uint64_t ahead_retry_ps_ = 0;
   uint64_t ahead_pass_ = 0;        // passes of OpenRowsAheadSlow so far
@@ -371,13 +372,11 @@ inline DramPick DramChannel::PickOldestHit(uint64_t cas_ps) {
   pick_ok_ps_ = cas_ps;
   head_ = Slot(1);
   --queued_;
-  --counted_;
   if (unopened_from_ > 0) --unopened_from_;
   return pick;
 }
 
 inline DramPick DramChannel::PickAt(uint64_t now_ps) {
-  Account();
   const DramRequest& oldest = queue_[head_];
   if (now_ps < next_refresh_ps_ && IsReadyHit(oldest, now_ps)) {
     // A ready hit's CAS waits only for channel-wide constraints (ACT + tRCD has passed).

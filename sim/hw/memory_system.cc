@@ -181,6 +181,7 @@ void DramMemory::Arrive(Progress& p, uint64_t when_ps) {
   r.tag = static_cast<uint32_t>(p.slot);
   r.column = p.next.column;
   r.is_write = p.is_write;
+  queue.Queued(r);
   if (was_empty) {
     UpdatePick<kOneChannel>(channel);
   } else {
