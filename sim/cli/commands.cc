@@ -245,6 +245,10 @@ int RunCommand(const Args& args) {
       "plots", po::value(&out.plots_dir)->value_name("DIR"),
       "write roofline, stall and energy plots (SVG + data + gnuplot script)")(
       "vcd", po::value(&options.vcd_path)->value_name("FILE"), "write unit activity as VCD")(
+      "dram-log", po::value(&options.dram_log_path)->value_name("FILE"),
+      "write every DRAM command (docs/dram-log.md)")(
+      "dram-log-limit", po::value(&options.dram_log_limit)->value_name("N"),
+      "stop the DRAM log after N commands, N >= 1 (default 1000000)")(
       "weights-resident", po::bool_switch(&options.weights_resident),
       "what-if: all weights already sit in the scratchpad, so no weight DMA; refused (exit 4) "
       "when they do not fit in the half of it beside the activations; needs --model; recorded "
@@ -255,6 +259,7 @@ int RunCommand(const Args& args) {
         "usage: tritsim run [--model FILE | --trace FILE] [--arch FILE] [workload options]\n"
         "       tritsim run --from-report RUN.json\n"
         "                   [--json FILE] [--csv FILE] [--plots DIR] [--vcd FILE]\n"
+        "                   [--dram-log FILE [--dram-log-limit N]]\n"
         "On a terminal, a progress line (step, share done, simulated time, ETA) shows on stderr.",
         desc);
     return 0;
@@ -263,11 +268,14 @@ int RunCommand(const Args& args) {
   ParseCommandLine("run", args, desc, vm);
   FinishInputOptions(vm, in);
   CheckRunFlags(in, trace_path, options.weights_resident, from_report);
+  if (vm.count("dram-log-limit") && (options.dram_log_limit < 1 || options.dram_log_path.empty()))
+    throw UsageError("--dram-log-limit: allowed: an integer >= 1, with --dram-log");
   // Before anything is simulated: a typo in an output path must not cost the run.
   CheckOutputPaths({{"--json", out.json, OutputKind::kFile},
                     {"--csv", out.csv, OutputKind::kFile},
                     {"--plots", out.plots_dir, OutputKind::kFolder},
-                    {"--vcd", options.vcd_path, OutputKind::kFile}});
+                    {"--vcd", options.vcd_path, OutputKind::kFile},
+                    {"--dram-log", options.dram_log_path, OutputKind::kFile}});
   ResolvedRun inputs = from_report.empty()
                            ? ResolveRunInputs(in, trace_path, options.weights_resident)
                            : LoadResolvedRun(from_report);

@@ -13,6 +13,7 @@ Accelerator::Accelerator(sc_core::sc_module_name name, const ArchConfig& arch,
       tree_array_("tree_array", arch.array, arch.packing, period_ps_, sram_),
       vector_unit_("vector_unit", arch.vector, period_ps_, sram_),
       sequencer_("sequencer", arch, options, trace, dma_, tree_array_, vector_unit_) {
+  if (options.dram_log != nullptr) memory_->SetCommandLog(options.dram_log);
   if (options.vcd_path.empty()) return;
   activity_ = std::make_unique<ActivityLog>();
   tree_array_.TraceActivity(activity_.get(), activity_->AddSignal("tree_array_busy"));

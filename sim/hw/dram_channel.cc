@@ -40,7 +40,8 @@ DramChannel::TimingPs DramChannel::ToPs(const DramTiming& t, uint64_t tck_ps) {
   return p;
 }
 
-DramChannel::DramChannel(const DramConfig& dram) {
+DramChannel::DramChannel(const DramConfig& dram, RowOpening opening)
+    : open_ahead_(opening == RowOpening::kAhead) {
   if (dram.bank_groups < 1 || dram.bank_groups > kMaxBankGroups || dram.banks_per_group < 1)
     throw InputError("architecture", 0, "dram.bank_groups",
                      "bank organisation out of range (1..16 groups, >= 1 bank per group)");
@@ -86,6 +87,7 @@ void DramChannel::RemoveAt(size_t age) {
   for (size_t a = age; a > 0; --a) queue_[Slot(a)] = queue_[Slot(a - 1)];
   head_ = Slot(1);
   --queued_;
+  if (age < unopened_from_) --unopened_from_;
 }
 
 uint64_t DramChannel::PlanAct(const DramRequest& r, uint64_t after_ps) const {
@@ -113,9 +115,21 @@ DramCommandTimes DramChannel::Plan(const DramRequest& r, uint64_t now_ps) const 
   return t;
 }
 
-void DramChannel::CountKind(const DramRequest& r) {
-  const uint64_t open = banks_[r.bank].open_row;
-  if (open == r.row) {
+void DramChannel::CountAhead(Bank& b, DramCommandTimes& reported) {
+  ++(b.ahead == Ahead::kConflict ? stats_.row_conflicts : stats_.row_misses);
+  if (reported.pre_ps == DramCommandTimes::kNoCommand) reported.pre_ps = b.ahead_pre_ps;
+  if (reported.act_ps == DramCommandTimes::kNoCommand) reported.act_ps = b.ahead_act_ps;
+  b.ahead = Ahead::kNone;
+}
+
+// Counts the request as a hit, miss or conflict by the bank state before
+// its own commands; a row opened ahead for it counts as what it was then.
+void DramChannel::CountKind(const DramRequest& r, DramCommandTimes& reported) {
+  Bank& b = banks_[r.bank];
+  const uint64_t open = b.open_row;
+  if (b.ahead != Ahead::kNone) {
+    CountAhead(b, reported);
+  } else if (open == r.row) {
     ++stats_.row_hits;
   } else if (open == kNoRow) {
     ++stats_.row_misses;
@@ -126,9 +140,57 @@ void DramChannel::CountKind(const DramRequest& r) {
   stats_.busy_ps += t_.burst;
 }
 
+void DramChannel::QueuedUnopened(const DramRequest& r, size_t age) {
+  ++unopened_;
+  unopened_from_ = std::min(unopened_from_, age);
+  ahead_retry_ps_ = std::min(ahead_retry_ps_, AheadPs(r, 0));
+}
+
+// Queued requests to `row` of `bank` become hits.
+void DramChannel::OpenRow(uint32_t bank, uint64_t row) {
+  Bank& b = banks_[bank];
+  b.open_row = row;
+  for (size_t age = unopened_from_; age < queued_; ++age) {
+    const DramRequest& r = At(age);
+    if (r.bank == bank && r.row == row) {
+      ++b.queued_hits;
+      --unopened_;
+    }
+  }
+}
+
+// The bank's queued hits now need a row again.
+void DramChannel::CloseRow(Bank& b) {
+  b.open_row = kNoRow;
+  ahead_retry_ps_ = 0;
+  if (b.queued_hits == 0) return;
+  unopened_ += b.queued_hits;
+  b.queued_hits = 0;
+  unopened_from_ = 0;  // the hits may be anywhere in the queue
+}
+
+void DramChannel::LogSlow(DramCommand cmd, uint64_t time_ps, uint32_t bank, uint64_t row,
+                          uint32_t column) const {
+  log_->Add(
+      {time_ps, row, column, log_channel_, bank / banks_per_group_, bank % banks_per_group_, cmd});
+}
+
+void DramChannel::CommitPre(uint32_t bank, uint64_t pre_ps) {
+  Bank& b = banks_[bank];
+  Log(DramCommand::kPre, pre_ps, bank, b.open_row, 0);
+  b.act_ok_ps = Max(b.act_ok_ps, pre_ps + t_.tRP);
+  b.ahead = Ahead::kNone;
+  CloseRow(b);
+}
+
+void DramChannel::AutoPrecharge(uint32_t bank) {
+  CommitPre(bank, banks_[bank].pre_ok_ps);  // as soon as tRAS / tRTP / tWR allow
+}
+
 void DramChannel::CommitAct(const DramRequest& r, uint64_t act_ps) {
   Bank& b = banks_[r.bank];
-  b.open_row = r.row;
+  Log(DramCommand::kAct, act_ps, r.bank, r.row, 0);
+  OpenRow(r.bank, r.row);
   b.cas_ok_ps = act_ps + t_.tRCD;
   b.pre_ok_ps = act_ps + t_.tRAS;
   b.act_ok_ps = act_ps + t_.tRC;
@@ -139,14 +201,98 @@ void DramChannel::CommitAct(const DramRequest& r, uint64_t act_ps) {
   ++stats_.activates;
 }
 
-void DramChannel::Commit(const DramRequest& r, const DramCommandTimes& t) {
-  CountKind(r);
-  if (t.pre_ps != DramCommandTimes::kNoCommand) {
-    banks_[r.bank].open_row = kNoRow;
-  }
+// Commits the request's own commands `t`; returns them with any PRE / ACT
+// issued ahead for it filled in.
+DramCommandTimes DramChannel::Commit(const DramRequest& r, const DramCommandTimes& t) {
+  DramCommandTimes reported = t;
+  CountKind(r, reported);
+  if (t.pre_ps != DramCommandTimes::kNoCommand) CommitPre(r.bank, t.pre_ps);
   if (t.act_ps != DramCommandTimes::kNoCommand) CommitAct(r, t.act_ps);
+  Leave(r);
   CommitCas(r, t);
   pick_ok_ps_ = std::min({t.pre_ps, t.act_ps, t.cas_ps});
+  return reported;
+}
+
+// When the PRE (row open) or ACT (bank closed) that `r` needs next could
+// issue, at or after after_ps; kNever while queued requests hit the open
+// row (never closed under them: common practice).
+uint64_t DramChannel::AheadPs(const DramRequest& r, uint64_t after_ps) const {
+  const Bank& b = banks_[r.bank];
+  if (b.open_row == kNoRow) return PlanAct(r, after_ps);
+  return b.queued_hits > 0 ? kNever : Max(after_ps, b.pre_ok_ps);
+}
+
+// One pass, oldest request first, issuing each PRE / ACT that can go by
+// the horizon (a request whose row gets precharged may get its ACT too).
+// A command issued in the pass only delays the ones the pass skipped, so one
+// pass finds them all; the earliest skipped one sets the next look. Only a
+// bank's oldest request needing a row matters: a younger one to the same
+// bank waits for the same command or for the row just opened to drain.
+void DramChannel::OpenRowsAheadSlow(uint64_t now_ps, uint64_t horizon_ps) {
+  const uint64_t last_pre_ps = std::min(horizon_ps, next_refresh_ps_ - 1);
+  const uint64_t last_act_ps = std::min(last_pre_ps, LastUsefulActPs());
+  uint64_t earliest = kNever;
+  bool all_hits = true;  // so far in the pass
+  ++ahead_pass_;
+  for (size_t age = unopened_from_; age < queued_ && unopened_ > 0; ++age) {
+    const DramRequest& r = At(age);
+    Bank& b = banks_[r.bank];
+    if (b.open_row == r.row) continue;
+    if (all_hits) unopened_from_ = age;
+    all_hits = false;
+    if (b.ahead_pass == ahead_pass_) continue;
+    b.ahead_pass = ahead_pass_;
+    earliest = std::min(earliest, OpenAheadFor(r, now_ps, last_pre_ps, last_act_ps));
+  }
+  ahead_retry_ps_ = earliest;
+}
+
+// A refresh already due is done first, as the next pick would do it (the
+// same refresh: nothing else issues in between).
+void DramChannel::ArrivedSlow(uint64_t now_ps) {
+  while (now_ps >= next_refresh_ps_) Refresh();
+  OpenRowsAhead(AlignUp(now_ps), pick_ok_ps_);
+}
+
+// The latest ACT ahead whose row could still serve a CAS before the refresh
+// deadline: a later one would only be closed again by the refresh. No PRE or
+// ACT ahead goes at or after the deadline (the refresh waits for them).
+uint64_t DramChannel::LastUsefulActPs() const {
+  return next_refresh_ps_ > t_.tRCD ? next_refresh_ps_ - t_.tRCD - 1 : 0;
+}
+
+// Issues the PRE and / or ACT that `r` needs if they fit by last_pre_ps /
+// last_act_ps; returns when the next of them could issue (kNever: not
+// before the refresh, or nothing left to issue).
+uint64_t DramChannel::OpenAheadFor(const DramRequest& r, uint64_t now_ps, uint64_t last_pre_ps,
+                                   uint64_t last_act_ps) {
+  uint64_t when = AheadPs(r, now_ps);
+  if (banks_[r.bank].open_row != kNoRow) {
+    if (when > last_pre_ps) return when;
+    PrechargeAhead(r.bank, when);
+    when = AheadPs(r, now_ps);
+  }
+  if (when > last_act_ps) return when > LastUsefulActPs() ? kNever : when;
+  ActivateAhead(r, when);
+  return kNever;
+}
+
+void DramChannel::PrechargeAhead(uint32_t bank, uint64_t pre_ps) {
+  CommitPre(bank, pre_ps);
+  Bank& b = banks_[bank];
+  b.ahead = Ahead::kConflict;
+  b.ahead_pre_ps = pre_ps;
+}
+
+void DramChannel::ActivateAhead(const DramRequest& r, uint64_t act_ps) {
+  Bank& b = banks_[r.bank];
+  if (b.ahead != Ahead::kConflict) {  // a closed bank, not one closed ahead
+    b.ahead = Ahead::kMiss;
+    b.ahead_pre_ps = DramCommandTimes::kNoCommand;
+  }
+  b.ahead_act_ps = act_ps;
+  CommitAct(r, act_ps);
 }
 
 void DramChannel::Refresh() {
@@ -157,10 +303,15 @@ void DramChannel::Refresh() {
     ref_ps = Max(ref_ps, ready);
   }
   const uint64_t end_ps = ref_ps + t_.tRFC;
-  for (Bank& b : banks_) {
-    b.open_row = kNoRow;
+  for (uint32_t i = 0; i < banks_.size(); ++i) {
+    Bank& b = banks_[i];
+    if (b.open_row != kNoRow)
+      Log(DramCommand::kPre, Max(next_refresh_ps_, b.pre_ok_ps), i, b.open_row, 0);
+    CloseRow(b);
+    b.ahead = Ahead::kNone;
     b.act_ok_ps = end_ps;
   }
+  Log(DramCommand::kRef, ref_ps, 0, 0, 0);
   ++stats_.refreshes;
   stats_.refresh_ps += t_.tRFC;
   next_refresh_ps_ += t_.tREFI;
@@ -177,9 +328,9 @@ DramPick DramChannel::PickAny(uint64_t now_ps) {
     times = Plan(At(age), now_ps);
   }
   const DramRequest& r = At(age);
-  Commit(r, times);
-  DramPick pick{r.tag, times};
+  DramPick pick{r.tag, Commit(r, times)};
   RemoveAt(age);
+  OpenRowsAhead(now_ps, times.cas_ps);
   return pick;
 }
 

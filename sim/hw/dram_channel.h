@@ -1,6 +1,7 @@
 // One DRAM channel: bank groups, banks with open rows, JEDEC timing state,
 // all-bank refresh, and a first-ready / first-come-first-served scheduler
-// (FR-FCFS, Rixner et al., ISCA 2000) over a bounded queue.
+// (FR-FCFS, Rixner et al., ISCA 2000) over a bounded queue that opens rows
+// for queued requests while other banks stream row hits.
 //
 // Plain C++, driven by the memory system's event loop (memory_system.cc),
 // which itself runs inside one DMA engine call: not thread-safe, no SystemC.
@@ -26,10 +27,20 @@
 //    for it; the refresh precharges all banks (respecting tRAS / tRTP / tWR),
 //    issues tRP later, blocks every bank for tRFC and leaves all rows closed.
 //    Deadlines stay on the tREFI grid even when one refresh slips.
+// Scheduling. A pick happens at a decision time (NextPickPs) and schedules
+// one column command (CAS): the oldest ready row hit if there is one, else
+// the oldest request, with whatever PRE / ACT it still needs. The pick then
+// opens rows ahead: up to its CAS time (and before the next refresh
+// deadline) it issues PRE / ACT, oldest request first, for queued requests
+// whose row is not open, as soon as tRP / tRAS / tRC / tRRD_S / tRRD_L /
+// tFAW allow, never closing a row that a queued request still hits (common
+// practice). So activates overlap the row-hit bursts of other banks. A
+// request that arrives while the channel waits for its next pick gets its
+// PRE / ACT ahead from its arrival (Arrived), up to that pick.
+// Every command kind issues in time order, which keeps the "allowed from"
+// state below exact.
 // Simplifications (documented, deliberate): the command bus is not modelled
-// (two commands may issue on the same edge); the scheduler commits to one
-// request at a time and looks for the next one when the committed request's
-// first command issues, so commands of one kind (ACT, CAS) issue in the
+// (two commands may issue on the same edge); column commands issue in the
 // order requests were picked; refresh is never postponed or pulled in.
 #pragma once
 
@@ -39,6 +50,7 @@
 #include <vector>
 
 #include "config/arch_config.h"
+#include "hw/dram_command_log.h"
 #include "results/run_result.h"
 
 namespace tritsim {
@@ -49,12 +61,15 @@ struct DramRequest {
   uint64_t arrival_ps = 0;  // when it entered the controller queue
   uint32_t bank = 0;        // flat bank index: bank_group * banks_per_group + bank
   uint32_t bank_group = 0;
-  uint32_t tag = 0;  // caller's handle, returned by Pick()
+  uint32_t tag = 0;     // caller's handle, returned by Pick()
+  uint32_t column = 0;  // burst index in the row; for the command log only
   bool is_write = false;
 };
 
 // Command and data times of one scheduled request. kNoCommand where the
-// request needed no such command (a row hit has no PRE or ACT).
+// request needed no such command (a row hit has no PRE or ACT). PRE / ACT
+// issued ahead for the request (opened while other banks streamed) are
+// reported with the first CAS to that row.
 struct DramCommandTimes {
   static constexpr uint64_t kNoCommand = ~uint64_t{0};
   uint64_t pre_ps = kNoCommand;
@@ -62,6 +77,11 @@ struct DramCommandTimes {
   uint64_t cas_ps = 0;
   uint64_t done_ps = 0;  // last data beat on the bus
 };
+
+// When the scheduler may open rows: ahead for any queued request while
+// other banks stream (the default, see the file comment), or in order, only
+// for the request it picks (a plain FR-FCFS controller; a baseline for tests).
+enum class RowOpening : uint8_t { kAhead, kInOrder };
 
 // What Pick() scheduled.
 struct DramPick {
@@ -78,17 +98,22 @@ class DramChannel {
 
   // REQUIRES: `dram` validated (bank_groups <= kMaxBankGroups, positive
   // timing). Allocates the bank table and the queue once, here.
-  explicit DramChannel(const DramConfig& dram);
+  explicit DramChannel(const DramConfig& dram, RowOpening opening = RowOpening::kAhead);
 
   bool HasRoom() const { return queued_ < capacity_; }
   bool Empty() const { return queued_ == 0; }
 
   // REQUIRES: HasRoom(); arrival_ps not earlier than any queued request's.
-  void Enqueue(const DramRequest& request) { Push() = request; }
+  void Enqueue(const DramRequest& request) {
+    DramRequest& slot = Push();
+    slot = request;
+    Queued(slot);
+  }
 
   // Appends an entry and returns it for the caller to fill in place (no
-  // copy). REQUIRES: HasRoom(); the caller fills every field before the next
-  // call on this channel, with the same arrival order rule as Enqueue.
+  // copy). REQUIRES: HasRoom(); the caller fills every field and calls
+  // Queued(entry) before any other call on this channel, with the same arrival
+  // order rule as Enqueue.
   DramRequest& Push() {
     DramRequest& slot = queue_[Slot(queued_)];
     ++queued_;
@@ -117,6 +142,40 @@ class DramChannel {
   // Does every refresh whose deadline is before end_ps.
   void Finish(uint64_t end_ps);
 
+  // Sends every command from now on to `log` as channel `channel`; null
+  // (the default) logs nothing. `log` must outlive the channel's use.
+  void SetCommandLog(DramCommandLog* log, uint32_t channel) {
+    log_ = log;
+    log_channel_ = channel;
+  }
+  // Counts `r`, the entry just filled in after Push: a hit on its bank's open
+  // row, or a request that needs its row opened.
+  void Queued(const DramRequest& r) {
+    Bank& b = banks_[r.bank];
+    if (b.open_row == r.row) {
+      ++b.queued_hits;
+    } else {
+      QueuedUnopened(r, queued_ - 1);
+    }
+  }
+
+  // A request has just been queued behind others at now_ps, while the
+  // channel waits for its next pick: opens its row ahead now (PRE / ACT up
+  // to that pick) instead of at the pick, as a controller deciding every
+  // clock would. REQUIRES: now_ps not earlier than the last pick or arrival.
+  void Arrived(uint64_t now_ps) {
+    if (open_ahead_ && now_ps < pick_ok_ps_) ArrivedSlow(now_ps);
+  }
+
+  // No command this channel issues from now on is earlier than this, given
+  // that no request arrives before `arrivals_from_ps` (for the command log).
+  // With rows opened ahead, an arrival may issue a PRE / ACT at once.
+  uint64_t CommandFloorPs(uint64_t arrivals_from_ps) const {
+    uint64_t decisions = Empty() ? std::max(pick_ok_ps_, arrivals_from_ps) : pick_ok_ps_;
+    if (open_ahead_) decisions = std::min(decisions, AlignUp(arrivals_from_ps));
+    return std::min(next_refresh_ps_, decisions);
+  }
+
   const DramStats& stats() const { return stats_; }
   uint64_t tck_ps() const { return tck_ps_; }
 
@@ -131,6 +190,8 @@ class DramChannel {
     uint64_t CL, CWL, tRCD, tRP, tRAS, tRC, tCCD_S, tCCD_L, tRRD_S, tRRD_L, tFAW, tWR;
     uint64_t tWTR_S, tWTR_L, tRTP, tRFC, tREFI, burst, rd_to_wr;
   };
+  // How the row now open was opened ahead, for the stats of its first CAS.
+  enum class Ahead : uint8_t { kNone, kMiss, kConflict };
   // Earliest times, ps, at which the next command of each kind may issue to
   // one bank. Stored as "allowed from" so that no state means time 0.
   struct Bank {
@@ -138,6 +199,11 @@ class DramChannel {
     uint64_t cas_ok_ps = 0;  // ACT + tRCD
     uint64_t pre_ok_ps = 0;  // max(ACT + tRAS, read CAS + tRTP, write end + tWR)
     uint64_t act_ok_ps = 0;  // max(PRE + tRP, ACT + tRC, end of refresh)
+    uint64_t ahead_pre_ps = DramCommandTimes::kNoCommand;  // PRE issued ahead, if any
+    uint64_t ahead_act_ps = DramCommandTimes::kNoCommand;  // ACT issued ahead, if any
+    uint32_t queued_hits = 0;                              // counted queued requests to open_row
+    uint64_t ahead_pass = 0;  // last pass of OpenRowsAheadSlow that looked at this bank
+    Ahead ahead = Ahead::kNone;
   };
 
   static TimingPs ToPs(const DramTiming& t, uint64_t tck_ps);
@@ -148,12 +214,40 @@ class DramChannel {
   DramCommandTimes Plan(const DramRequest& r, uint64_t now_ps) const;
   uint64_t PlanAct(const DramRequest& r, uint64_t after_ps) const;
   uint64_t PlanCas(const DramRequest& r, uint64_t after_ps) const;
-  void Commit(const DramRequest& r, const DramCommandTimes& t);
+  DramCommandTimes Commit(const DramRequest& r, const DramCommandTimes& t);
   void CommitAct(const DramRequest& r, uint64_t act_ps);
+  void CommitPre(uint32_t bank, uint64_t pre_ps);
   void CommitCas(const DramRequest& r, const DramCommandTimes& t);
-  void CountKind(const DramRequest& r);
+  void AutoPrecharge(uint32_t bank);
+  void CountKind(const DramRequest& r, DramCommandTimes& reported);
+  void CountAhead(Bank& b, DramCommandTimes& reported);
   void Refresh();
   void RemoveAt(size_t age);
+  void QueuedUnopened(const DramRequest& r, size_t age);
+  // The request leaves the queue with its CAS (its row is open by then).
+  void Leave(const DramRequest& r) {
+    if (--banks_[r.bank].queued_hits == 0 && unopened_ > 0) ahead_retry_ps_ = 0;
+  }
+  uint64_t AheadPs(const DramRequest& r, uint64_t after_ps) const;
+  void OpenRow(uint32_t bank, uint64_t row);
+  void CloseRow(Bank& b);
+  // Opening rows ahead (see the file comment); commands in [now_ps, horizon_ps].
+  void OpenRowsAhead(uint64_t now_ps, uint64_t horizon_ps) {
+    if (unopened_ > 0 && horizon_ps >= ahead_retry_ps_ && open_ahead_)
+      OpenRowsAheadSlow(now_ps, horizon_ps);
+  }
+  void OpenRowsAheadSlow(uint64_t now_ps, uint64_t horizon_ps);
+  void ArrivedSlow(uint64_t now_ps);
+  uint64_t LastUsefulActPs() const;
+  uint64_t OpenAheadFor(const DramRequest& r, uint64_t now_ps, uint64_t last_pre_ps,
+                        uint64_t last_act_ps);
+  void PrechargeAhead(uint32_t bank, uint64_t pre_ps);
+  void ActivateAhead(const DramRequest& r, uint64_t act_ps);
+  void Log(DramCommand cmd, uint64_t time_ps, uint32_t bank, uint64_t row, uint32_t column) const {
+    if (log_ != nullptr) LogSlow(cmd, time_ps, bank, row, column);
+  }
+  void LogSlow(DramCommand cmd, uint64_t time_ps, uint32_t bank, uint64_t row,
+               uint32_t column) const;
   size_t Slot(size_t age) const {
     const size_t i = head_ + age;
     return i >= capacity_ ? i - capacity_ : i;
@@ -182,6 +276,7 @@ class DramChannel {
   uint64_t tck_ps_ = 1;
   EdgeTest edge_;  // for OnClockEdge
   bool closed_page_ = false;
+  bool open_ahead_ = true;  // RowOpening::kAhead
   uint32_t banks_per_group_ = 1;
 
   std::vector<Bank> banks_;
@@ -198,6 +293,15 @@ class DramChannel {
   uint64_t wr_data_ok_ps_ = 0;                                      // earliest start of write data
   uint64_t next_refresh_ps_ = 0;                                    // next refresh deadline
   uint64_t pick_ok_ps_ = 0;  // first command of the last pick
+  // Row opening ahead: every queued request is counted in its bank's
+  // queued_hits or in unopened_; and a time before which no PRE / ACT ahead
+  // can issue (0: look again).
+  size_t unopened_ = 0;       // queued requests whose row is not open
+  size_t unopened_from_ = 0;  // requests older than this age are all hits
+  uint64_t ahead_retry_ps_ = 0;
+  uint64_t ahead_pass_ = 0;        // passes of OpenRowsAheadSlow so far
+  DramCommandLog* log_ = nullptr;  // null: no command log
+  uint32_t log_channel_ = 0;
 
   // Queue: a ring in arrival order (age 0 = oldest).
   std::vector<DramRequest> queue_;
@@ -230,6 +334,7 @@ inline uint64_t DramChannel::PlanCas(const DramRequest& r, uint64_t after_ps) co
 
 inline void DramChannel::CommitCas(const DramRequest& r, const DramCommandTimes& t) {
   Bank& b = banks_[r.bank];
+  Log(r.is_write ? DramCommand::kWr : DramCommand::kRd, t.cas_ps, r.bank, r.row, r.column);
   cas_any_ok_ps_ = t.cas_ps + t_.tCCD_S;
   cas_group_ok_ps_[r.bank_group] = t.cas_ps + t_.tCCD_L;
   if (r.is_write) {
@@ -243,10 +348,7 @@ inline void DramChannel::CommitCas(const DramRequest& r, const DramCommandTimes&
     rd_data_ok_ps_ = t.done_ps;
     wr_data_ok_ps_ = t.done_ps + t_.rd_to_wr;
   }
-  if (closed_page_) {  // auto-precharge as soon as allowed
-    b.act_ok_ps = std::max(b.act_ok_ps, b.pre_ok_ps + t_.tRP);
-    b.open_row = kNoRow;
-  }
+  if (closed_page_) AutoPrecharge(r.bank);
 }
 
 // The oldest request is a ready row hit and its CAS comes before the next
@@ -257,13 +359,20 @@ inline DramPick DramChannel::PickOldestHit(uint64_t cas_ps) {
   pick.tag = r.tag;
   pick.times.cas_ps = cas_ps;
   pick.times.done_ps = cas_ps + (r.is_write ? t_.CWL : t_.CL) + t_.burst;
-  ++stats_.row_hits;
+  Bank& b = banks_[r.bank];
+  if (b.ahead == Ahead::kNone) {
+    ++stats_.row_hits;
+  } else {
+    CountAhead(b, pick.times);
+  }
   ++(r.is_write ? stats_.writes : stats_.reads);
   stats_.busy_ps += t_.burst;
+  Leave(r);
   CommitCas(r, pick.times);
   pick_ok_ps_ = cas_ps;
   head_ = Slot(1);
   --queued_;
+  if (unopened_from_ > 0) --unopened_from_;
   return pick;
 }
 
@@ -272,7 +381,11 @@ inline DramPick DramChannel::PickAt(uint64_t now_ps) {
   if (now_ps < next_refresh_ps_ && IsReadyHit(oldest, now_ps)) {
     // A ready hit's CAS waits only for channel-wide constraints (ACT + tRCD has passed).
     const uint64_t cas_ps = PlanCas(oldest, now_ps);
-    if (cas_ps < next_refresh_ps_) return PickOldestHit(cas_ps);
+    if (cas_ps < next_refresh_ps_) {
+      const DramPick pick = PickOldestHit(cas_ps);
+      OpenRowsAhead(now_ps, cas_ps);
+      return pick;
+    }
   }
   return PickAny(now_ps);
 }

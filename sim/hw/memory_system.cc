@@ -42,11 +42,12 @@ void AddStats(DramStats& sum, const DramStats& s) {
 
 class DramMemory final : public MemorySystem {
  public:
-  explicit DramMemory(const DramConfig& dram);
+  DramMemory(const DramConfig& dram, RowOpening opening);
 
   uint64_t Transfer(uint64_t address, uint64_t bytes, bool is_write, uint64_t start_ps,
                     int64_t max_outstanding) override;
   void Finish(uint64_t end_ps) override;
+  void SetCommandLog(DramCommandLog* log) override;
   const DramStats& stats() const override;
   uint64_t burst_bytes() const override { return map_.burst_bytes(); }
   double peak_bytes_per_second() const override { return peak_bytes_per_second_; }
@@ -105,6 +106,7 @@ class DramMemory final : public MemorySystem {
   void Arrive(Progress& p, uint64_t when_ps);
   template <bool kOneChannel>
   void PickOn(Progress& p, size_t channel, uint64_t when_ps);
+  void ReleaseLog();
 
   DramAddressMap map_;
   std::vector<DramChannel> channels_;
@@ -123,7 +125,13 @@ class DramMemory final : public MemorySystem {
   std::vector<uint64_t> tree_ps_;
   std::vector<uint32_t> tree_channel_;
   mutable DramStats total_;
+  DramCommandLog* log_ = nullptr;   // null: no command log
+  uint64_t transfer_start_ps_ = 0;  // start_ps of the current Transfer
 };
+
+// Commands held by the log before it writes out what is safe (a batch keeps
+// the scan over the channels rare; its size bounds the log's memory).
+constexpr size_t kLogReleaseBatch = 4096;
 
 size_t RoundUpToPowerOfTwo(size_t n) {
   size_t p = 1;
@@ -131,10 +139,10 @@ size_t RoundUpToPowerOfTwo(size_t n) {
   return p;
 }
 
-DramMemory::DramMemory(const DramConfig& dram)
+DramMemory::DramMemory(const DramConfig& dram, RowOpening opening)
     : map_(dram), banks_per_group_(static_cast<uint32_t>(dram.banks_per_group)) {
   channels_.reserve(static_cast<size_t>(dram.channels));
-  for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram);
+  for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram, opening);
   leaves_ = RoundUpToPowerOfTwo(channels_.size());
   tree_ps_.assign(2 * leaves_, DramChannel::kNever);
   tree_channel_.assign(2 * leaves_, 0);
@@ -171,8 +179,14 @@ void DramMemory::Arrive(Progress& p, uint64_t when_ps) {
   r.bank = p.next.bank_group * banks_per_group_ + p.next.bank;
   r.bank_group = p.next.bank_group;
   r.tag = static_cast<uint32_t>(p.slot);
+  r.column = p.next.column;
   r.is_write = p.is_write;
-  if (was_empty) UpdatePick<kOneChannel>(channel);
+  queue.Queued(r);
+  if (was_empty) {
+    UpdatePick<kOneChannel>(channel);
+  } else {
+    queue.Arrived(when_ps);
+  }
   window_ps_[p.slot] = kUnknown;
   p.now_ps = when_ps;
   p.slot = p.slot + 1 == p.window ? 0 : p.slot + 1;
@@ -189,6 +203,28 @@ void DramMemory::PickOn(Progress& p, size_t channel, uint64_t when_ps) {
   p.done_ps = std::max(p.done_ps, pick.times.done_ps);
   p.now_ps = when_ps;
   ++p.picked;
+  if (log_ != nullptr && log_->held() >= kLogReleaseBatch) ReleaseLog();
+}
+
+// Writes the logged commands no channel can precede any more. No request
+// arrives before the current transfer's start (later transfers start no
+// earlier), so an idle channel can do its refreshes due before then at
+// once: it would do them first thing at its next pick anyway, so results do
+// not change.
+void DramMemory::ReleaseLog() {
+  uint64_t floor_ps = DramChannel::kNever;
+  for (DramChannel& c : channels_) {
+    if (c.Empty()) c.Finish(transfer_start_ps_);
+    floor_ps = std::min(floor_ps, c.CommandFloorPs(transfer_start_ps_));
+  }
+  log_->Release(floor_ps);
+}
+
+void DramMemory::SetCommandLog(DramCommandLog* log) {
+  log_ = log;
+  for (size_t c = 0; c < channels_.size(); ++c) {
+    channels_[c].SetCommandLog(log, static_cast<uint32_t>(c));
+  }
 }
 
 uint64_t DramMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, uint64_t start_ps,
@@ -199,7 +235,7 @@ uint64_t DramMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, u
   p.next_address = address / burst * burst;
   p.next = map_.Decode(p.next_address);
   p.count = (address + bytes + burst - 1) / burst - address / burst;
-  p.now_ps = p.done_ps = start_ps;
+  p.now_ps = p.done_ps = transfer_start_ps_ = start_ps;
   p.is_write = is_write;
   const uint64_t window = static_cast<uint64_t>(std::max<int64_t>(1, max_outstanding));
   p.window = static_cast<size_t>(std::min(window, p.count));
@@ -227,6 +263,7 @@ void DramMemory::RunEvents(Progress& p) {
 
 void DramMemory::Finish(uint64_t end_ps) {
   for (DramChannel& c : channels_) c.Finish(end_ps);
+  if (log_ != nullptr) log_->Release(DramChannel::kNever);
 }
 
 const DramStats& DramMemory::stats() const {
@@ -237,9 +274,9 @@ const DramStats& DramMemory::stats() const {
 
 }  // namespace
 
-std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram) {
+std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram, RowOpening opening) {
   if (dram.is_ideal()) return std::make_unique<IdealMemory>(dram);
-  return std::make_unique<DramMemory>(dram);
+  return std::make_unique<DramMemory>(dram, opening);
 }
 
 }  // namespace tritsim

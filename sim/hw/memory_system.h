@@ -14,6 +14,8 @@
 #include <memory>
 
 #include "config/arch_config.h"
+#include "hw/dram_channel.h"
+#include "hw/dram_command_log.h"
 #include "results/run_result.h"
 
 namespace tritsim {
@@ -33,12 +35,21 @@ class MemorySystem {
   // Accounts refreshes and bus time up to `end_ps` (end of the run).
   virtual void Finish(uint64_t end_ps) = 0;
 
+  // Sends every DRAM command from now on to `log` (Release-d as the run
+  // goes, everything by the end of Finish); the caller Closes it after
+  // Finish. Results are the same with and without a log. The ideal memory
+  // issues no commands. REQUIRES: before the first Transfer.
+  virtual void SetCommandLog(DramCommandLog* /*log*/) {}
+
   virtual const DramStats& stats() const = 0;
   virtual uint64_t burst_bytes() const = 0;          // bytes per request, all channels alike
   virtual double peak_bytes_per_second() const = 0;  // all channels, no refresh
 };
 
 // REQUIRES: `dram` validated by the config loader (preset applied).
-std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram);
+// `opening` is for tests that compare against in-order row opening; the
+// simulator always opens rows ahead.
+std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram,
+                                               RowOpening opening = RowOpening::kAhead);
 
 }  // namespace tritsim

@@ -9,6 +9,8 @@
 
 namespace tritsim {
 
+class DramCommandLog;
+
 // Where a run is, reported as the sequencer takes each trace record.
 struct SimProgress {
   Phase phase = Phase::kDecode;  // phase of the current step
@@ -25,6 +27,12 @@ struct SimOptions {
   bool weights_resident = false;
   // Write unit activity as a VCD (IEEE 1364) file here; empty: none.
   std::string vcd_path;
+  // Write the DRAM command log (docs/dram-log.md) here; empty: none. At most
+  // dram_log_limit commands (>= 1), then a truncation line.
+  std::string dram_log_path;
+  int64_t dram_log_limit = 1000000;
+  // Set by RunSimulation while it writes dram_log_path; callers leave it null.
+  DramCommandLog* dram_log = nullptr;
   // Called once per trace record, from the simulation thread; empty: none.
   // Must be cheap (it runs per op) and must not throw.
   std::function<void(const SimProgress&)> on_progress;

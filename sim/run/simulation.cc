@@ -7,6 +7,7 @@
 #include "common/atomic_file.h"
 #include "common/error.h"
 #include "hw/accelerator.h"
+#include "hw/dram_command_log.h"
 
 namespace tritsim {
 
@@ -46,9 +47,7 @@ class ProgressSource : public TraceSource {
   SimProgress progress_;
 };
 
-}  // namespace
-
-RunResult RunSimulation(const ArchConfig& arch, TraceSource& trace, const SimOptions& options) {
+RunResult Simulate(const ArchConfig& arch, TraceSource& trace, const SimOptions& options) {
   QuietSystemC();
   std::unique_ptr<Accelerator> top;
   ProgressSource reporting(trace, options.on_progress);
@@ -71,6 +70,24 @@ RunResult RunSimulation(const ArchConfig& arch, TraceSource& trace, const SimOpt
   result.weights_resident = options.weights_resident;
   top->Collect(result);
   if (top->activity()) WriteFileAtomically(options.vcd_path, top->activity()->ToVcd("accelerator"));
+  return result;
+}
+
+}  // namespace
+
+// With a DRAM log, the whole run streams into the log's temporary file, so a
+// missing or read-only folder fails before simulating (exit 3) and a failed
+// run leaves no log.
+RunResult RunSimulation(const ArchConfig& arch, TraceSource& trace, const SimOptions& options) {
+  if (options.dram_log_path.empty()) return Simulate(arch, trace, options);
+  RunResult result;
+  StreamFileAtomically(options.dram_log_path, [&](std::ostream& out) {
+    DramCommandLog log(out, arch.dram, static_cast<uint64_t>(options.dram_log_limit));
+    SimOptions logged = options;
+    logged.dram_log = &log;
+    result = Simulate(arch, trace, logged);
+    log.Close();
+  });
   return result;
 }
 

@@ -287,7 +287,12 @@ TEST_F(DramTest, DramClosedPageGivesNoRowHitsOnSequentialStream) {
   Stream(*mem, 1 * kMiB);
   EXPECT_EQ(mem->stats().row_hits, 0u);
   EXPECT_EQ(mem->stats().row_misses, mem->stats().reads);
-  EXPECT_EQ(mem->stats().activates, mem->stats().reads);
+  // One ACT per access (JESD79-4 auto-precharge closes the row after each),
+  // plus rows opened ahead that a refresh closed before their CAS could
+  // issue (at most one per bank per refresh).
+  const uint64_t banks = static_cast<uint64_t>(d.bank_groups * d.banks_per_group);
+  EXPECT_GE(mem->stats().activates, mem->stats().reads);
+  EXPECT_LE(mem->stats().activates, mem->stats().reads + banks * mem->stats().refreshes);
 }
 
 TEST_F(DramTest, DramOpenPageHitsMostOfSequentialStream) {
