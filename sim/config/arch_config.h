@@ -2,8 +2,9 @@
 //
 // Filled by config_loader from an architecture YAML file (or the embedded
 // default). Each unit's module takes its own struct by const&. Field
-// comments give meaning, unit, default and valid range; the loader enforces
-// the ranges and docs/config-reference.md lists them.
+// comments give meaning, unit, default and valid range; the field table
+// (config_fields.cc) holds each key's range, which the loader enforces and a
+// test checks against docs/config-reference.md.
 #pragma once
 
 #include <cstdint>
