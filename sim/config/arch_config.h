@@ -105,6 +105,9 @@ struct DramConfig {
                                            AddressField::kColumn, AddressField::kBankGroup,
                                            AddressField::kChannel};
   DramTiming timing;
+  // Total capacity over all channels, GiB (2^30 bytes), (0, 1048576]; < 0
+  // (the default): the preset's capacity per channel x channels.
+  double capacity_gib = -1.0;
   // Ideal memory only: fixed latency and bandwidth, no banks, no refresh.
   double ideal_latency_ns = 50.0;      // (0, 1e6]
   double ideal_bandwidth_gbps = 25.6;  // GB/s (1e9 bytes/s), (0, 1e6]

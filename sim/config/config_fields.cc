@@ -226,6 +226,8 @@ constexpr IntRule kBankGroups{1, 16};
 constexpr IntRule kBanksPerGroup{1, 64};
 constexpr IntRule kRowBytes{16, 65536, true};
 constexpr IntRule kQueueDepth{1, 1024};
+// Up to 1 PiB: far beyond any design point, and bytes stay exact in a double.
+constexpr RealRule kDramCapacityGib{0.0, 1048576.0, true, false};
 // A DRAM timing in nCK. 1e6 cycles is a millisecond even at 1 GHz, beyond
 // any JEDEC parameter, including tREFI.
 constexpr IntRule kDramCycles{1, 1000000, false, "a positive integer number of DRAM cycles",
@@ -336,6 +338,9 @@ std::vector<ArchField> DramFields() {
       PresetField(),
       Int<A>(
           "dram.channels", "count", kChannels, [](A & a) -> auto& { return a.dram.channels; }),
+      FromPreset(Real<A>(
+          "dram.capacity_gib", "GiB (2^30 bytes)", kDramCapacityGib,
+          [](A & a) -> auto& { return a.dram.capacity_gib; })),
       FromPreset(IntChoice<A>(
           "dram.bus_width_bits", "bits", kBusWidths,
           [](A & a) -> auto& { return a.dram.bus_width_bits; })),

@@ -46,10 +46,31 @@ const char* ArrayKindName(ArrayKind kind) {
   return "?";
 }
 
+nlohmann::ordered_json CapacityJson(const DramCapacity& c) {
+  return {{"dram_bytes", c.dram_bytes},
+          {"weight_bytes", c.weight_bytes},
+          {"activation_bytes", c.activation_bytes},
+          {"kv_bytes_per_token", c.kv_bytes_per_token},
+          {"free_bytes", c.free_bytes},
+          {"max_kv_tokens", c.max_kv_tokens},
+          {"max_context_at_batch", c.max_context_at_batch},
+          {"max_batch_at_context", c.max_batch_at_context}};
+}
+
 std::string G(double v) {
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.4g", v);
   return buf;
+}
+
+void PrintCapacity(const nlohmann::ordered_json& c, const WorkloadConfig& w, std::ostream& out) {
+  out << "  DRAM capacity   " << G(c["dram_bytes"].get<double>() / 1e9) << " GB: weights "
+      << G(c["weight_bytes"].get<double>() / 1e9) << " GB, activation buffers "
+      << G(c["activation_bytes"].get<double>() / 1e6) << " MB, room for "
+      << c["max_kv_tokens"].get<int64_t>() << " KV tokens\n";
+  out << "                  longest context " << c["max_context_at_batch"].get<int64_t>()
+      << " at batch " << w.batch << "; largest batch " << c["max_batch_at_context"].get<int64_t>()
+      << " at context " << FinalContextTokens(w) << "\n";
 }
 
 }  // namespace
@@ -101,6 +122,7 @@ nlohmann::ordered_json InspectJson(const InspectInputs& in) {
   j["arch"]["decode_intensity_ops_per_byte"] = stats.ops_per_token / storage.total();
   j["arch"]["decode_tokens_per_second_bound"] =
       std::min(peak_ops / stats.ops_per_token, peak_bytes / storage.total());
+  j["capacity"] = CapacityJson(ComputeDramCapacity(in.model, in.arch, in.workload));
   return j;
 }
 
@@ -137,6 +159,7 @@ void PrintInspect(const InspectInputs& in, std::ostream& out) {
       << ")\n";
   out << "  decode bound    " << G(a["decode_tokens_per_second_bound"].get<double>())
       << " tokens/s at batch 1 (roofline, weights only)\n";
+  PrintCapacity(j["capacity"], in.workload, out);
   out << "  Model estimates for architecture exploration, not sign-off numbers.\n";
 }
 
