@@ -16,6 +16,7 @@
 #include "energy/area_model.h"
 #include "energy/energy_model.h"
 #include "mapping/tiler.h"
+#include "model/model_stats.h"
 #include "model/trace_builder.h"
 #include "report/inspect_report.h"
 #include "report/plots.h"
@@ -151,6 +152,24 @@ void CheckWeightsResident(const ModelConfig& model, const ArchConfig& arch) {
                  " KiB; the other half holds activations); drop --weights-resident");
 }
 
+std::string Bytes(double bytes) { return std::to_string(uint64_t(bytes)) + " bytes"; }
+
+// Refuses a workload whose weights, activation buffers and final KV cache
+// (batch x final context) do not fit in the DRAM (dram.capacity_gib).
+void CheckDramCapacity(const ModelConfig& model, const ArchConfig& arch,
+                       const WorkloadConfig& workload) {
+  const DramCapacity c = ComputeDramCapacity(model, arch, workload);
+  if (c.fits()) return;
+  throw SimError("the DRAM of " + arch.name + " (" + Bytes(c.dram_bytes) +
+                 ", dram.capacity_gib) cannot hold the weights of " + model.name + " (" +
+                 Bytes(c.weight_bytes) + ") plus its KV cache at batch " +
+                 std::to_string(workload.batch) + " x context " +
+                 std::to_string(FinalContextTokens(workload)) + " (" + Bytes(c.kv_bytes_at_end) +
+                 ") and activation buffers (" + Bytes(c.activation_bytes) +
+                 "); the longest context at this batch is " +
+                 std::to_string(c.max_context_at_batch) + " (tritsim inspect)");
+}
+
 // The trace to simulate: generated from the model (checking its workload and
 // --weights-resident), or replayed from --trace. Sets `ops_per_step` for the
 // progress line (0 for a replayed trace: learned as it runs).
@@ -163,6 +182,7 @@ std::unique_ptr<TraceSource> OpenRunTrace(const ResolvedRun& in, uint64_t& ops_p
   const ModelConfig& model = *in.model;
   ValidateWorkload(in.workload, model);
   WarnAccumulatorWidth(in.arch, model);
+  CheckDramCapacity(model, in.arch, in.workload);
   if (in.weights_resident) CheckWeightsResident(model, in.arch);
   ops_per_step = OpsPerStep(model);
   return BuildTrace(model, in.workload);

@@ -2,8 +2,9 @@
 //
 // Filled by config_loader from an architecture YAML file (or the embedded
 // default). Each unit's module takes its own struct by const&. Field
-// comments give meaning, unit, default and valid range; the loader enforces
-// the ranges and docs/config-reference.md lists them.
+// comments give meaning, unit, default and valid range; the field table
+// (config_fields.cc) holds each key's range, which the loader enforces and a
+// test checks against docs/config-reference.md.
 #pragma once
 
 #include <cstdint>
@@ -104,6 +105,9 @@ struct DramConfig {
                                            AddressField::kColumn, AddressField::kBankGroup,
                                            AddressField::kChannel};
   DramTiming timing;
+  // Total capacity over all channels, GiB (2^30 bytes), (0, 1048576]; < 0
+  // (the default): the preset's capacity per channel x channels.
+  double capacity_gib = -1.0;
   // Ideal memory only: fixed latency and bandwidth, no banks, no refresh.
   double ideal_latency_ns = 50.0;      // (0, 1e6]
   double ideal_bandwidth_gbps = 25.6;  // GB/s (1e9 bytes/s), (0, 1e6]

@@ -149,20 +149,33 @@ constexpr double kLpddr5Vdd = 1.05;  // VDD2H (JESD209-5; M)
 constexpr double kHbm2eRefreshAmps = 0.05;
 constexpr double kHbm2eVdd = 1.2;  // (JESD235; M)
 
+// Capacity per channel, from common device densities (docs/references.md,
+// "Capacities": common practice, L): a DDR4 64-bit channel commonly holds
+// 8 - 32 GiB (one DIMM); a phone carries 8 - 16 GB of LPDDR5 over four x16
+// channels; an HBM2E stack of eight 16 Gb dies holds 16 GiB over 16
+// pseudo-channels (JESD235 allows 4/8/12-Hi stacks; M).
+constexpr double kDdr4ChannelGib = 16.0;   // one 16 GiB DIMM (common practice, L)
+constexpr double kLpddr5ChannelGib = 3.0;  // 4 channels = a 12 GiB phone (common practice, L)
+constexpr double kHbm2eChannelGib = 1.0;   // 16 GiB stack / 16 pseudo-channels (JESD235; M)
+constexpr double kIdealChannelGib = 16.0;  // as the DDR4 channel it stands in for
+constexpr const char* kCapacitySource = "docs/references.md, Capacities (common practice; L)";
+
 // The preset table: one row per preset, everything tritsim knows of it.
 const std::vector<DramPreset>& Table() {
   static const std::vector<DramPreset> kTable = {
       {"ddr4-3200", ApplyDdr4_3200, 17.5,
        "midpoint of 15 - 20 pJ/bit for DDR4 (docs/references.md; L)", kDdr4RefreshAmps, kDdr4Vdd,
-       kDdr4DevicesPerChannel},
+       kDdr4DevicesPerChannel, kDdr4ChannelGib, kCapacitySource},
       {"lpddr5-6400", ApplyLpddr5_6400, 6.0,
        "midpoint of 4 - 8 pJ/bit for LPDDR4/5 (docs/references.md; L)", kLpddr5RefreshAmps,
-       kLpddr5Vdd, 1},
+       kLpddr5Vdd, 1, kLpddr5ChannelGib, kCapacitySource},
       {"hbm2e", ApplyHbm2e, 3.97, "HBM2, O'Connor et al., MICRO 2017 (M; assumed equal for HBM2E)",
-       kHbm2eRefreshAmps, kHbm2eVdd, 1},
+       kHbm2eRefreshAmps, kHbm2eVdd, 1, kHbm2eChannelGib,
+       "16 GiB HBM2E stack of eight 16 Gb dies, 16 pseudo-channels (JESD235; M)"},
       // Ideal memory: the DDR4 per-bit value, so sanity runs cost like the
       // default channel; no refresh.
-      {"ideal", ApplyIdeal, 17.5, "the ddr4-3200 value (sanity runs)", 0.0, 0.0, 0},
+      {"ideal", ApplyIdeal, 17.5, "the ddr4-3200 value (sanity runs)", 0.0, 0.0, 0,
+       kIdealChannelGib, "the ddr4-3200 value (sanity runs)"},
   };
   return kTable;
 }
@@ -216,6 +229,13 @@ void ApplyDramPreset(const std::string& preset, DramConfig& dram) {
 
 int64_t DramBurstBytes(const DramConfig& dram) {
   return dram.bus_width_bits / 8 * dram.timing.burst_length;
+}
+
+double DramCapacityBytes(const DramConfig& dram) {
+  constexpr double kBytesPerGib = 1024.0 * 1024.0 * 1024.0;
+  if (dram.capacity_gib > 0) return dram.capacity_gib * kBytesPerGib;
+  const double per_channel = DramPresetOrThrow(dram.preset).capacity_gib;
+  return per_channel * static_cast<double>(dram.channels) * kBytesPerGib;
 }
 
 double DramPeakBytesPerSecond(const DramConfig& dram) {

@@ -30,6 +30,8 @@ struct DramPreset {
   double refresh_amps;            // IDD5B - IDD3N of one device during a REF, A
   double vdd_volts;               // the supply that current is drawn from, V
   int devices_per_channel;        // devices one REF command reaches (0: no refresh)
+  double capacity_gib;            // default capacity of one channel, GiB (2^30 bytes), > 0
+  const char* capacity_source;    // where capacity_gib comes from, with confidence
 
   // Energy of one all-bank REF on one channel, pJ: devices x (IDD5B - IDD3N)
   // x VDD x tRFC (the preset's own tRFC).
@@ -51,6 +53,10 @@ const DramPreset& DramPresetOrThrow(const std::string& name);
 // Bytes one request (one burst) moves on one channel:
 // bus_width_bits / 8 * burst_length.
 int64_t DramBurstBytes(const DramConfig& dram);
+
+// DRAM capacity of the design point, bytes: dram.capacity_gib (a total over
+// all channels) when given, else the preset's per-channel capacity x channels.
+double DramCapacityBytes(const DramConfig& dram);
 
 // Peak data rate of all channels together, bytes/s, ignoring refresh and
 // all other overheads. DDR-style: two transfers per tCK, so

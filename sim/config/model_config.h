@@ -1,8 +1,8 @@
 // A decoder-only transformer, as the trace builder and `inspect` see it.
 //
 // Plain value type, filled by config_loader (the only code that reads YAML)
-// or by the embedded default. Every field has a default; validation of
-// ranges and consistency happens in the loader.
+// or by the embedded default. Every field has a default; each key's range is
+// in the field table (config_fields.cc), consistency checks in the loader.
 #pragma once
 
 #include <cstdint>

@@ -1,6 +1,8 @@
 // Strict YAML reading for the config loader. See yaml_reader.h.
 #include "config/yaml_reader.h"
 
+#include "config/config_fields.h"
+
 #include <algorithm>
 #include <charconv>
 #include <cmath>
@@ -19,8 +21,8 @@ namespace {
 
 using FailFn = std::function<Error(int line, const std::string& message)>;
 
-constexpr size_t kMaxShownValueChars = 40;  // longer values are cut in messages
-constexpr size_t kMaxStringChars = 200;     // names and labels
+constexpr size_t kMaxShownValueChars = 40;                 // longer values are cut in messages
+constexpr size_t kMaxStringChars = kMaxConfigStringChars;  // names and labels
 
 int LineOf(const YAML::Mark& mark) { return mark.line < 0 ? 0 : mark.line + 1; }
 
@@ -156,12 +158,6 @@ std::string ShowValue(const YAML::Node& value) {
   if (text.size() > kMaxShownValueChars) text = text.substr(0, kMaxShownValueChars) + "...";
   const bool quoted = value.Tag() == "!";
   return quoted ? "\"" + text + "\" (a quoted string)" : text;
-}
-
-std::string FormatReal(double v) {
-  char text[32];
-  std::snprintf(text, sizeof text, "%.10g", v);
-  return text;
 }
 
 std::string DescribeRule(const IntRule& rule) {

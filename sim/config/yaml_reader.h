@@ -23,6 +23,7 @@
 
 #include "common/error.h"
 #include "config/config_loader.h"
+#include "config/field_rules.h"
 
 namespace tritsim::config_internal {
 
@@ -82,25 +83,9 @@ class Document {
   std::vector<std::string> overridden_;  // override key paths, in order applied
 };
 
-// An integer rule: inclusive range, optionally a power of two. `what`
-// replaces the generic "an integer in [lo, hi]" in messages for values below
-// `lo` (e.g. "a positive integer number of DRAM cycles"); `unit` follows
-// "at most HI" for values above `hi`.
-struct IntRule {
-  int64_t lo;
-  int64_t hi;
-  bool power_of_two = false;
-  const char* what = nullptr;
-  const char* unit = nullptr;
-};
-
-// A real-number rule: finite, in [lo, hi] or (lo, hi] when lo_open.
-struct RealRule {
-  double lo;
-  double hi;
-  bool lo_open = false;
-  bool hi_open = false;
-};
+// The rules live in config/field_rules.h (shared with the field tables).
+using tritsim::IntRule;
+using tritsim::RealRule;
 
 // One map in the document at key path `path` ("" for the top level).
 // Construction checks that the node is a map (an absent node is an empty

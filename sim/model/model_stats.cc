@@ -1,5 +1,10 @@
 #include "model/model_stats.h"
 
+#include <algorithm>
+#include <cmath>
+
+#include "config/dram_presets.h"
+
 namespace tritsim {
 namespace {
 
@@ -122,6 +127,33 @@ ByClass WeightBytesOn(const ModelConfig& model, ArrayKind kind, TritPacking pack
   b.head = p.head * bytes(model.head_weights);
   b.norm = p.norm * double(model.norm_bits) / kBitsPerByte;
   return b;
+}
+
+int64_t FinalContextTokens(const WorkloadConfig& w) {
+  return w.context_tokens + w.prefill_tokens + w.decode_tokens;
+}
+
+double ActivationBufferBytes(const ModelConfig& m, const WorkloadConfig& w) {
+  constexpr double kSpillAreas = 2.0;  // input and output (tiler.cc)
+  const double rows = double(w.batch) * double(std::max<int64_t>(w.prefill_tokens, 1));
+  const int64_t widest = std::max({m.width, m.ffn_width, m.heads * m.head_dim, m.vocab});
+  return kSpillAreas * rows * double(widest) * double(m.activation_bits) / kBitsPerByte;
+}
+
+DramCapacity ComputeDramCapacity(const ModelConfig& model, const ArchConfig& arch,
+                                 const WorkloadConfig& workload) {
+  DramCapacity c;
+  c.dram_bytes = DramCapacityBytes(arch.dram);
+  c.weight_bytes = WeightBytesOn(model, arch.array.kind, arch.packing.format).total();
+  c.activation_bytes = ActivationBufferBytes(model, workload);
+  c.kv_bytes_per_token = ComputeModelStats(model).kv_bytes_per_token;
+  c.free_bytes = std::max(0.0, c.dram_bytes - c.weight_bytes - c.activation_bytes);
+  c.max_kv_tokens = int64_t(std::floor(c.free_bytes / c.kv_bytes_per_token));
+  c.max_context_at_batch = c.max_kv_tokens / std::max<int64_t>(workload.batch, 1);
+  const int64_t context = std::max<int64_t>(FinalContextTokens(workload), 1);
+  c.max_batch_at_context = c.max_kv_tokens / context;
+  c.kv_bytes_at_end = c.kv_bytes_per_token * double(workload.batch) * double(context);
+  return c;
 }
 
 }  // namespace tritsim

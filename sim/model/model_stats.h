@@ -7,6 +7,7 @@
 
 #include "config/arch_config.h"
 #include "config/model_config.h"
+#include "config/workload_config.h"
 
 namespace tritsim {
 
@@ -49,5 +50,34 @@ double WeightBits(WeightFormat format, ArrayKind kind, TritPacking packing);
 // (WeightBits per class; norms at norm_bits; a tied head stores nothing).
 // What the design point must hold in DRAM for the model's weights.
 ByClass WeightBytesOn(const ModelConfig& model, ArrayKind kind, TritPacking packing);
+
+// What the design point's DRAM holds for a model and workload (`inspect`'s
+// "capacity" section; `run` refuses a workload that does not fit).
+struct DramCapacity {
+  double dram_bytes = 0;             // DramCapacityBytes: dram.capacity_gib or preset x channels
+  double weight_bytes = 0;           // WeightBytesOn, all classes
+  double activation_bytes = 0;       // DRAM activation spill areas, ActivationBufferBytes
+  double kv_bytes_per_token = 0;     // K and V of all layers for one token at kv_bits
+  double free_bytes = 0;             // dram - weights - activations, at least 0: room for KV
+  int64_t max_kv_tokens = 0;         // floor(free / kv_bytes_per_token), over all sequences
+  int64_t max_context_at_batch = 0;  // floor(max_kv_tokens / batch): tokens per sequence
+  int64_t max_batch_at_context = 0;  // floor(max_kv_tokens / final context of the workload)
+  double kv_bytes_at_end = 0;        // KV cache of the workload: batch x final context tokens
+  // True if weights, activation buffers and the workload's KV cache fit.
+  bool fits() const { return weight_bytes + activation_bytes + kv_bytes_at_end <= dram_bytes; }
+};
+
+// Tokens in one sequence's KV cache at the end of the workload:
+// context + prefill + decode.
+int64_t FinalContextTokens(const WorkloadConfig& workload);
+
+// Bytes of the DRAM activation spill areas (the tiler's input and output
+// areas, sim/mapping/tiler.cc): two areas, each one step's widest activation
+// matrix, batch x max(prefill, 1) rows x max(width, ffn.width, heads x
+// head_dim, vocab) elements at activation_bits. An upper estimate.
+double ActivationBufferBytes(const ModelConfig& model, const WorkloadConfig& workload);
+
+DramCapacity ComputeDramCapacity(const ModelConfig& model, const ArchConfig& arch,
+                                 const WorkloadConfig& workload);
 
 }  // namespace tritsim

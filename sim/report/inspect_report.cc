@@ -38,6 +38,17 @@ const ByClass& StorageOnArch(const ModelStats& stats, const ArchConfig& arch) {
                                                     : stats.weight_bytes_two_bit;
 }
 
+nlohmann::ordered_json CapacityJson(const DramCapacity& c) {
+  return {{"dram_bytes", c.dram_bytes},
+          {"weight_bytes", c.weight_bytes},
+          {"activation_bytes", c.activation_bytes},
+          {"kv_bytes_per_token", c.kv_bytes_per_token},
+          {"free_bytes", c.free_bytes},
+          {"max_kv_tokens", c.max_kv_tokens},
+          {"max_context_at_batch", c.max_context_at_batch},
+          {"max_batch_at_context", c.max_batch_at_context}};
+}
+
 std::string G(double v) {
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.4g", v);
@@ -93,6 +104,16 @@ std::string RidgeVerdict(const nlohmann::ordered_json& j) {
   return verdict;
 }
 
+void PrintCapacity(const nlohmann::ordered_json& c, const WorkloadConfig& w, std::ostream& out) {
+  out << "  DRAM capacity   " << G(c["dram_bytes"].get<double>() / 1e9) << " GB: weights "
+      << G(c["weight_bytes"].get<double>() / 1e9) << " GB, activation buffers "
+      << G(c["activation_bytes"].get<double>() / 1e6) << " MB, room for "
+      << c["max_kv_tokens"].get<int64_t>() << " KV tokens\n";
+  out << "                  longest context " << c["max_context_at_batch"].get<int64_t>()
+      << " at batch " << w.batch << "; largest batch " << c["max_batch_at_context"].get<int64_t>()
+      << " at context " << FinalContextTokens(w) << "\n";
+}
+
 }  // namespace
 
 double WeightBytesOnArch(const ModelConfig& model, const ArchConfig& arch) {
@@ -140,6 +161,7 @@ nlohmann::ordered_json InspectJson(const InspectInputs& in) {
                {"sram_bytes", double(in.arch.sram.capacity_kib) * 1024.0}};
   // Decode at batch 1 reads every weight once per token: its intensity.
   j["arch"]["decode_intensity_ops_per_byte"] = stats.ops_per_token / storage.total();
+  j["capacity"] = CapacityJson(ComputeDramCapacity(in.model, in.arch, in.workload));
   WorkloadBounds bounds;
   try {
     bounds = BoundsOfWorkload(in.model, in.arch, in.workload);
@@ -193,6 +215,7 @@ void PrintInspect(const InspectInputs& in, std::ostream& out) {
   }
   PrintPhaseBounds(j["bounds"], "prefill", out);
   PrintPhaseBounds(j["bounds"], "decode", out);
+  PrintCapacity(j["capacity"], in.workload, out);
   out << "  Model estimates for architecture exploration, not sign-off numbers.\n";
 }
 

@@ -3,6 +3,7 @@
 
 #include <charconv>
 #include <cmath>
+#include <functional>
 #include <nlohmann/json.hpp>
 
 #include "common/error.h"
@@ -11,9 +12,6 @@
 
 namespace tritsim {
 namespace {
-
-const std::vector<std::string> kStallKeys = {"busy", "dram_wait", "sram_conflict", "vector_wait",
-                                             "idle"};
 
 const nlohmann::json& At(const nlohmann::json& j, const std::string& section,
                          const std::string& key) {
@@ -44,24 +42,69 @@ double MemoryBoundShare(const nlohmann::json& run) {
   return all > 0 ? memory / all : 0.0;
 }
 
+// `section.key` of the run JSON over `denominator`, 0 when it is not positive.
+double ShareOf(const nlohmann::json& run, const char* section, const char* key,
+               double denominator) {
+  return denominator > 0 ? Number(run, section, key) / denominator : 0.0;
+}
+
+// A number of the run JSON's totals, as exact decimal text.
+std::string Total(const nlohmann::json& run, const char* key) {
+  return FormatExact(Number(run, "totals", key));
+}
+
+// Cycles spent in stall category `key` over all cycles.
+std::string StallShare(const nlohmann::json& run, const char* key) {
+  return FormatExact(ShareOf(run, "stalls", key, Number(run, "totals", "cycles")));
+}
+
+std::string DramUtilization(const nlohmann::json& run) {
+  const double peak = Number(run, "dram", "peak_bytes_per_second");
+  return FormatExact(ShareOf(run, "dram", "bandwidth_bytes_per_second", peak));
+}
+
+std::string Cycles(const nlohmann::json& run) {
+  return std::to_string(At(run, "totals", "cycles").get<uint64_t>());
+}
+
+// One metric column: its CSV name and how its value comes from the run JSON.
+struct MetricColumn {
+  const char* name;                                      // CSV header (docs/sweeps.md)
+  std::function<std::string(const nlohmann::json&)> of;  // value text from a tritsim.run/1 JSON
+};
+
+// The one table of metric columns, in CSV order.
+const std::vector<MetricColumn>& MetricTable() {
+  using J = const nlohmann::json&;
+  static const std::vector<MetricColumn> kTable = {
+      {"tokens_per_second", [](J r) { return Total(r, "tokens_per_second"); }},
+      {"time_to_first_token_seconds", [](J r) { return Total(r, "time_to_first_token_seconds"); }},
+      {"time_per_output_token_seconds",
+       [](J r) { return Total(r, "time_per_output_token_seconds"); }},
+      {"joules_per_token", [](J r) { return Total(r, "joules_per_token"); }},
+      {"picojoules_per_op", [](J r) { return Total(r, "picojoules_per_op"); }},
+      {"area_mm2", [](J r) { return Total(r, "area_mm2"); }},
+      {"memory_bound_share", [](J r) { return FormatExact(MemoryBoundShare(r)); }},
+      {"dram_bandwidth_utilization", DramUtilization},
+      {"busy_share", [](J r) { return StallShare(r, "busy"); }},
+      {"dram_wait_share", [](J r) { return StallShare(r, "dram_wait"); }},
+      {"sram_conflict_share", [](J r) { return StallShare(r, "sram_conflict"); }},
+      {"vector_wait_share", [](J r) { return StallShare(r, "vector_wait"); }},
+      {"idle_share", [](J r) { return StallShare(r, "idle"); }},
+      {"cycles", Cycles},
+  };
+  return kTable;
+}
+
 }  // namespace
 
 const std::vector<std::string>& MetricColumns() {
-  static const std::vector<std::string> columns = {"tokens_per_second",
-                                                   "time_to_first_token_seconds",
-                                                   "time_per_output_token_seconds",
-                                                   "joules_per_token",
-                                                   "picojoules_per_op",
-                                                   "area_mm2",
-                                                   "memory_bound_share",
-                                                   "dram_bandwidth_utilization",
-                                                   "busy_share",
-                                                   "dram_wait_share",
-                                                   "sram_conflict_share",
-                                                   "vector_wait_share",
-                                                   "idle_share",
-                                                   "cycles"};
-  return columns;
+  static const std::vector<std::string> kColumns = [] {
+    std::vector<std::string> names;
+    for (const MetricColumn& column : MetricTable()) names.push_back(column.name);
+    return names;
+  }();
+  return kColumns;
 }
 
 std::vector<std::string> SweepCsvHeader(const std::vector<std::string>& axis_keys) {
@@ -92,20 +135,8 @@ std::string FormatExact(double v) {
 }
 
 std::vector<std::string> MetricsFromRunJson(const nlohmann::json& run) try {
-  const double cycles = Number(run, "totals", "cycles");
-  const double peak = Number(run, "dram", "peak_bytes_per_second");
   std::vector<std::string> m;
-  for (const char* key :
-       {"tokens_per_second", "time_to_first_token_seconds", "time_per_output_token_seconds",
-        "joules_per_token", "picojoules_per_op", "area_mm2"}) {
-    m.push_back(FormatExact(Number(run, "totals", key)));
-  }
-  m.push_back(FormatExact(MemoryBoundShare(run)));
-  m.push_back(FormatExact(peak > 0 ? Number(run, "dram", "bandwidth_bytes_per_second") / peak : 0));
-  for (const std::string& key : kStallKeys) {
-    m.push_back(FormatExact(cycles > 0 ? Number(run, "stalls", key) / cycles : 0));
-  }
-  m.push_back(std::to_string(At(run, "totals", "cycles").get<uint64_t>()));
+  for (const MetricColumn& column : MetricTable()) m.push_back(column.of(run));
   return m;
 } catch (const nlohmann::json::exception& e) {
   throw Error(ExitCode::kBadInput, std::string("run JSON: ") + e.what());

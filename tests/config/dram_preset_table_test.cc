@@ -99,6 +99,18 @@ TEST(DramPresetTable, DocsListEveryPresetsRefreshEnergy) {
   }
 }
 
+TEST(DramPresetTable, DocsListEveryPresetsCapacityPerChannel) {
+  const std::string docs = ReadSource("docs/config-reference.md");
+  const size_t start = docs.find("| capacity per channel");
+  ASSERT_NE(start, std::string::npos);
+  const std::string row = docs.substr(start, docs.find('\n', start) - start);
+  for (const DramPreset& preset : DramPresetTable()) {
+    if (preset.devices_per_channel == 0) continue;  // ideal: described in prose
+    EXPECT_NE(row.find("| " + Number(preset.capacity_gib) + " GiB"), std::string::npos)
+        << preset.name << " in: " << row;
+  }
+}
+
 // DRAM energy per bit moved, implied by a golden run's report: everything
 // charged to DRAM (bits, activates, refreshes) over the bits moved.
 double ImpliedPjPerBit(const std::string& golden) {
