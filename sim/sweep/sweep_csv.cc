@@ -67,6 +67,24 @@ std::string Cycles(const nlohmann::json& run) {
   return std::to_string(At(run, "totals", "cycles").get<uint64_t>());
 }
 
+// `key` of the run's phase `phase`, or 0 when the run has no such phase
+// (or, from before phases carried it, no such figure).
+std::string PhaseFigure(const nlohmann::json& run, const char* phase, const char* key) {
+  if (!run.contains("phases") || !run["phases"].is_array()) return FormatExact(0.0);
+  for (const nlohmann::json& p : run["phases"]) {
+    if (p.value("name", "") == phase && p.contains(key) && p[key].is_number()) {
+      return FormatExact(p[key].get<double>());
+    }
+  }
+  return FormatExact(0.0);
+}
+
+// Average power over the whole run: energy / time.
+std::string Watts(const nlohmann::json& run) {
+  const double seconds = Number(run, "totals", "seconds");
+  return FormatExact(seconds > 0 ? Number(run, "totals", "energy_joules") / seconds : 0.0);
+}
+
 // One metric column: its CSV name and how its value comes from the run JSON.
 struct MetricColumn {
   const char* name;                                      // CSV header (docs/sweeps.md)
@@ -92,6 +110,12 @@ const std::vector<MetricColumn>& MetricTable() {
       {"vector_wait_share", [](J r) { return StallShare(r, "vector_wait"); }},
       {"idle_share", [](J r) { return StallShare(r, "idle"); }},
       {"cycles", Cycles},
+      {"prefill_tokens_per_second",
+       [](J r) { return PhaseFigure(r, "prefill", "tokens_per_second"); }},
+      {"decode_tokens_per_second",
+       [](J r) { return PhaseFigure(r, "decode", "tokens_per_second"); }},
+      {"decode_joules_per_token", [](J r) { return PhaseFigure(r, "decode", "joules_per_token"); }},
+      {"watts", Watts},
   };
   return kTable;
 }

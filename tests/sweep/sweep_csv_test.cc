@@ -77,7 +77,10 @@ TEST(SweepCsv, MetricsComeFromTheRunJson) {
   const nlohmann::json run = nlohmann::json::parse(R"({
     "totals": {"cycles": 1000, "tokens_per_second": 50.0, "time_to_first_token_seconds": 0.02,
                "time_per_output_token_seconds": 0.02, "joules_per_token": 0.5,
-               "picojoules_per_op": 2.0, "area_mm2": 1.5},
+               "picojoules_per_op": 2.0, "area_mm2": 1.5, "seconds": 0.001,
+               "energy_joules": 0.004},
+    "phases": [{"name": "prefill", "tokens_per_second": 800.0},
+               {"name": "decode", "tokens_per_second": 50.0, "joules_per_token": 0.25}],
     "stalls": {"busy": 400, "dram_wait": 500, "sram_conflict": 0, "vector_wait": 100, "idle": 0},
     "dram": {"bandwidth_bytes_per_second": 12.8e9, "peak_bytes_per_second": 25.6e9},
     "layers": [{"cycles": 300, "regime": "memory"}, {"cycles": 100, "regime": "compute"}]})");
@@ -97,6 +100,10 @@ TEST(SweepCsv, MetricsComeFromTheRunJson) {
   EXPECT_EQ(value("vector_wait_share"), "0.1");
   EXPECT_EQ(value("idle_share"), "0");
   EXPECT_EQ(value("cycles"), "1000");
+  EXPECT_EQ(value("prefill_tokens_per_second"), "800");
+  EXPECT_EQ(value("decode_tokens_per_second"), "50");
+  EXPECT_EQ(value("decode_joules_per_token"), "0.25");
+  EXPECT_EQ(value("watts"), "4");  // 0.004 J over 1 ms
   EXPECT_THROW(MetricsFromRunJson(nlohmann::json::parse(R"({"totals": {}})")), Error);
 }
 
