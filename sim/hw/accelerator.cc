@@ -1,5 +1,7 @@
 #include "hw/accelerator.h"
 
+#include "mapping/resource_bounds.h"
+
 namespace tritsim {
 
 Accelerator::Accelerator(sc_core::sc_module_name name, const ArchConfig& arch,
@@ -40,6 +42,13 @@ void Accelerator::Collect(RunResult& result) {
   result.sram_port_busy_cycles = sram_.reads() + sram_.writes() + sram_.conflict_cycles();
   result.peak_ops_per_second = rates.array_ops_per_cycle / (double(period_ps_) * 1e-12);
   result.dram_peak_bytes_per_second = rates.dram_bytes_per_cycle / (double(period_ps_) * 1e-12);
+  const double hz = 1.0 / (double(period_ps_) * 1e-12);
+  const ResourceRates ceilings = RatesOf(arch_);
+  result.vector_peak_ops_per_second = rates.vector_ops_per_cycle * hz;
+  result.concurrency_bytes_per_second = ceilings.concurrent_bytes * hz;
+  const bool decodes =
+      arch_.array.kind == ArrayKind::kTernary && arch_.packing.format == TritPacking::kBase3;
+  result.decoder_bytes_per_second = decodes ? ceilings.decoder_bytes * hz : 0.0;
 }
 
 }  // namespace tritsim

@@ -136,6 +136,28 @@ std::string GnuplotArray(const std::string& name, const std::vector<std::string>
   return out + "]\n";
 }
 
+// The ceilings besides the tree array's and DRAM bandwidth's, each a line
+// with its name (docs/engine.md, "Every resource is a ceiling"): the vector
+// unit's peak, Little's law on the DMA window, and the trit decoder, whose
+// roof assumes every DRAM byte is a packed weight (true of decode GEMMs).
+std::string OtherCeilings(const RunResult& run) {
+  std::ostringstream s;
+  s << ", \\\n     " << Num(run.vector_peak_ops_per_second)
+    << " title \"vector unit peak\" with lines lw 1.5 dt 2 lc rgb \"#1b7837\"";
+  if (run.concurrency_bytes_per_second > 0 &&
+      run.concurrency_bytes_per_second < run.dram_peak_bytes_per_second) {
+    s << ", \\\n     " << Num(run.concurrency_bytes_per_second)
+      << " * x title \"request concurrency (Little's law)\" with lines lw 1.5 dt 3 "
+         "lc rgb \"#b2182b\"";
+  }
+  if (run.decoder_bytes_per_second > 0) {
+    s << ", \\\n     " << Num(run.decoder_bytes_per_second)
+      << " * x title \"trit decoder (weight bytes)\" with lines lw 1.5 dt 4 "
+         "lc rgb \"#762a83\"";
+  }
+  return s.str();
+}
+
 // The points: one plot clause per drawable class (own key entry and point
 // type), selected from roofline.dat by row number; the rest are listed in a
 // note under the key.
@@ -157,8 +179,9 @@ std::string RooflinePoints(const RunResult& run, const std::vector<OpClassPoint>
     for (size_t i = 0; i < undrawn.size(); ++i) note += (i % 2 ? ", " : "\\n") + undrawn[i];
     s << "set label 1 \"" << note << "\" at graph 1.04, graph 0.38 left front\n";
   }
-  s << "plot ceiling(x) title \"ceiling\" "
-       "with lines lw 2 lc rgb \"#303030\"";
+  s << "plot ceiling(x) title \"ceiling (tree array, DRAM bandwidth)\" "
+       "with lines lw 2 lc rgb \"#303030\""
+    << OtherCeilings(run);
   if (!rows.empty()) {
     s << ", \\\n     for [i=1:" << rows.size() << "] \"roofline.dat\" "
       << "every ::point_row[i]::point_row[i] using 2:3 with points pt point_type[i] ps 1.5 lw 2 "

@@ -174,8 +174,14 @@ struct RunResult {
   uint64_t vector_busy_cycles = 0;
   uint64_t sram_port_busy_cycles =
       0;  // cycles with a scratchpad port in use, summed over banks/ports
-  double peak_ops_per_second = 0.0;
+  double peak_ops_per_second = 0.0;  // the tree array's
   double dram_peak_bytes_per_second = 0.0;
+  // The other ceilings, per second (sim/mapping/resource_bounds.h), for the
+  // roofline plot: the vector unit's peak ops, the bytes Little's law lets
+  // the DMA window move, the packed bytes the trit decoder expands (0: none).
+  double vector_peak_ops_per_second = 0.0;
+  double concurrency_bytes_per_second = 0.0;
+  double decoder_bytes_per_second = 0.0;
 };
 
 }  // namespace tritsim
