@@ -30,8 +30,8 @@ lowers tokens/s (the decode phase's, else the total) by more than 0.5%.
 A draw the loader rejects (exit 2 or 3) or that does not fit (exit 4: a tile
 larger than the scratchpad, or a workload larger than DRAM) is redrawn, not
 counted. Known exceptions (a law that fails through a modelling artefact we
-report rather than fix here) are listed in KNOWN_EXCEPTIONS with the artefact
-named; they are printed but do not fail the test.
+report rather than fix here) are marked in check_report and
+check_point with the artefact named (WRITE_LATENCY, CROSS_PHASE); they are printed but do not fail the test.
 """
 
 import argparse
@@ -65,9 +65,6 @@ MONO_TOLERANCE = 0.005
 ENERGY_TOLERANCE = 1e-9
 STALLS = ["busy", "dram_wait", "sram_conflict", "vector_wait", "idle"]
 ENERGY_PARTS = ["arithmetic", "sram", "dram", "decoder", "leakage"]
-
-# (law, knob or None, predicate on the base point) -> artefact. Empty: none known.
-KNOWN_EXCEPTIONS = []
 
 REDRAW_CODES = {2, 3, 4}
 MAX_ATTEMPTS = 30
@@ -165,38 +162,77 @@ def tokens_per_second(report):
     return report["totals"]["tokens_per_second"]
 
 
+# Known exceptions: modelling artefacts reported, not fixed here. A failure is
+# marked known only when the weaker law the artefact still allows holds.
+WRITE_LATENCY = ("request_concurrency bound prices DRAM writes at the read row-hit latency "
+                 "CL + BL/2 (sim/mapping/resource_bounds.cc, DramRowHitLatencyNs); writes "
+                 "finish at CWL + BL/2 (sim/hw/dram_channel.cc), so write-heavy ops beat it")
+CROSS_PHASE = ("the DMA prefetches the decode phase's first tiles while the prefill phase "
+               "still runs: the decode phase's bound counts those bytes, its cycles do not")
+
+
+def write_latency_scale(report):
+    """How much shorter a write's row-hit latency is than a read's (1: not at all)."""
+    dram = report["resolved"]["arch"]["dram"]
+    if dram["preset"] == "ideal":
+        return 1.0
+    t = dram["timing"]
+    return (t["CWL"] + t["burst_length"] / 2) / (t["CL"] + t["burst_length"] / 2)
+
+
+def whole_run_dram_bound_holds(report):
+    """Law 1 for the run as one phase: total cycles >= all DRAM bytes at peak."""
+    per_cycle = report["arch"]["dram_peak_bytes_per_second"] / (report["design"]["core_mhz"] * 1e6)
+    dram_bytes = sum(layer["dram_bytes"] for layer in report["layers"])
+    return report["totals"]["cycles"] >= dram_bytes / per_cycle * (1 - 1e-9)
+
+
+def beaten(entry, scale=1.0):
+    return entry["cycles"] < entry["bound_cycles"] * scale * (1 - 1e-12)
+
+
 def check_report(report):
-    """Laws 1-3 on one run JSON; returns a list of (law, message)."""
+    """Laws 1-3 on one run JSON; returns a list of (law, message, artefact or None)."""
     bad = []
-    for i, layer in enumerate(report["layers"]):
-        if layer["cycles"] < layer["bound_cycles"] * (1 - 1e-12):
-            bad.append((1, f"layers[{i}] {layer['phase']}/{layer['name']}: cycles "
-                           f"{layer['cycles']} < bound_cycles {layer['bound_cycles']} "
-                           f"({layer['bound_by']})"))
-    for phase in report["phases"]:
-        if phase["cycles"] < phase["bound_cycles"] * (1 - 1e-12):
-            bad.append((1, f"phase {phase['name']}: cycles {phase['cycles']} < "
-                           f"bound_cycles {phase['bound_cycles']} ({phase['bound_by']})"))
+    scale = write_latency_scale(report)
+    names = [phase["name"] for phase in report["phases"]]
+    entries = [(f"layers[{i}] {e['phase']}/{e['name']}", e, False)
+               for i, e in enumerate(report["layers"])]
+    entries += [(f"phase {e['name']}", e, True) for e in report["phases"]]
+    for label, e, is_phase in entries:
+        if not beaten(e):
+            continue
+        artefact = None
+        if e["bound_by"] == "request_concurrency" and not beaten(e, scale):
+            artefact = WRITE_LATENCY
+        elif (is_phase and e["name"] == "decode" and "prefill" in names
+              and e["bound_by"] in ("dram_bandwidth", "request_concurrency")
+              and whole_run_dram_bound_holds(report)):
+            artefact = CROSS_PHASE
+        bad.append((1, f"{label}: cycles {e['cycles']} < bound_cycles {e['bound_cycles']} "
+                       f"({e['bound_by']})", artefact))
     stalls = report["stalls"]
     total_cycles = report["totals"]["cycles"]
     if sum(stalls[k] for k in STALLS) != total_cycles:
         bad.append((2, f"stalls {[stalls[k] for k in STALLS]} sum to "
-                       f"{sum(stalls[k] for k in STALLS)}, totals.cycles {total_cycles}"))
+                       f"{sum(stalls[k] for k in STALLS)}, totals.cycles {total_cycles}", None))
     joules = report["totals"]["energy_joules"]
     parts = sum(report["energy"][k] for k in ENERGY_PARTS)
     if abs(parts - joules) > ENERGY_TOLERANCE * abs(joules):
-        bad.append((3, f"energy components sum to {parts!r}, total {joules!r}"))
+        bad.append((3, f"energy components sum to {parts!r}, total {joules!r}", None))
     phases = sum(p["joules"] for p in report["phases"])
     if abs(phases - joules) > ENERGY_TOLERANCE * abs(joules):
-        bad.append((3, f"phases' joules sum to {phases!r}, total {joules!r}"))
+        bad.append((3, f"phases' joules sum to {phases!r}, total {joules!r}", None))
     return bad
 
 
-def known(law, knob, point):
-    for k_law, k_knob, predicate, artefact in KNOWN_EXCEPTIONS:
-        if k_law == law and k_knob == knob and predicate(point):
-            return artefact
-    return None
+def record(result, bad, cmd, src):
+    for law, message, artefact in bad:
+        if artefact:
+            result["known"].append(
+                (law, f"{message}\n  {shown(cmd, src)}\n  known exception: {artefact}"))
+        else:
+            result["failures"].append((law, f"{message}\n  {shown(cmd, src)}"))
 
 
 def check_point(args, index, with_mono, out):
@@ -220,10 +256,7 @@ def check_point(args, index, with_mono, out):
     if code != 0:
         result["failures"].append((0, f"run exited {code}: {err[-300:]}\n  {shown(cmd, args.src)}"))
         return result
-    for law, message in check_report(report):
-        entry = (law, f"{message}\n  {shown(cmd, args.src)}")
-        artefact = known(law, None, point)
-        (result["known"] if artefact else result["failures"]).append(entry)
+    record(result, check_report(report), cmd, args.src)
     if not with_mono:
         return result
     base = tokens_per_second(report)
@@ -241,15 +274,20 @@ def check_point(args, index, with_mono, out):
             result["variant_rejected"].append(
                 f"{knob}: variant exited {vcode}: {verr[-200:]}\n  {shown(vcmd, args.src)}")
             continue
-        for law, message in check_report(vreport):
-            result["failures"].append((law, f"{message}\n  {shown(vcmd, args.src)}"))
+        record(result, check_report(vreport), vcmd, args.src)
         ratio = tokens_per_second(vreport) / base
         result["ratios"][knob] = ratio
         if ratio < 1 - MONO_TOLERANCE:
             entry = (4, f"{knob}: tokens/s {base:.6g} -> {tokens_per_second(vreport):.6g} "
                         f"(ratio {ratio:.4f})\n  base:    {shown(cmd, args.src)}\n"
                         f"  variant: {shown(vcmd, args.src)}")
-            artefact = known(4, knob, point)
+            # Decode tokens/s shifts with the phase boundary (CROSS_PHASE): known
+            # only when a prefill precedes and the whole run is not slower.
+            artefact = None
+            base_s = report["totals"]["cycles"] / report["design"]["core_mhz"]
+            variant_s = vreport["totals"]["cycles"] / vreport["design"]["core_mhz"]
+            if point["prefill"] > 0 and variant_s <= base_s * (1 + MONO_TOLERANCE):
+                artefact = CROSS_PHASE
             if artefact:
                 result["known"].append((4, entry[1] + f"\n  known exception: {artefact}"))
             else:
@@ -299,13 +337,18 @@ def main():
     ok = [r for r in results if "fatal" not in r]
     runs = sum(r["runs"] for r in ok)
     redraws = sum(r["redraws"] for r in ok)
+    per_law = {}
+    for r in ok:
+        for law, _ in r["known"]:
+            per_law[law] = per_law.get(law, 0) + 1
+    known_counts = ", ".join(f"law {law} x{n}" for law, n in sorted(per_law.items()))
     held = ",".join(str(law) for law in (1, 2, 3, 4) if law not in laws_failed)
     ratios = " ".join(f"{k}={v:.4f}" if v is not None else f"{k}=n/a"
                       for k, v in worst.items())
     print(f"laws: {len(ok)} points checked (laws 1-3), {min(args.mono, len(ok))} for "
           f"monotonicity, {runs} runs, {redraws} redraws; laws held: {held or 'none'}; "
           f"worst tokens/s ratio per knob: {ratios}; "
-          f"{sum(len(r['known']) for r in ok)} known exceptions")
+          f"known exceptions: {known_counts or 'none'}")
     return 1 if failed else 0
 
 
