@@ -7,6 +7,7 @@
 // rounding of a minimum delay up to whole clocks (common practice).
 #include "config/dram_presets.h"
 
+#include <algorithm>
 #include <cmath>
 
 #include "common/error.h"
@@ -252,6 +253,12 @@ double DramRowHitLatencyNs(const DramConfig& dram) {
   if (dram.is_ideal()) return dram.ideal_latency_ns;
   const DramTiming& t = dram.timing;
   return (double(t.CL) + double(t.burst_length) / 2.0) * t.tCK_ns;
+}
+
+double DramShortestLatencyNs(const DramConfig& dram) {
+  if (dram.is_ideal()) return dram.ideal_latency_ns;
+  const DramTiming& t = dram.timing;
+  return (double(std::min(t.CL, t.CWL)) + double(t.burst_length) / 2.0) * t.tCK_ns;
 }
 
 double DramRowMissLatencyNs(const DramConfig& dram) {

@@ -67,6 +67,10 @@ double DramPeakBytesPerSecond(const DramConfig& dram);
 // Shortest time from a read request to its last data, ns: a row hit, CL
 // plus the burst (BL/2 tCK). Ideal memory: ideal_latency_ns.
 double DramRowHitLatencyNs(const DramConfig& dram);
+// Shortest time from any request to its last data, ns: a row-hit write,
+// CWL plus the burst, when CWL < CL (it is on every JEDEC preset), else a
+// row-hit read. Ideal memory: ideal_latency_ns.
+double DramShortestLatencyNs(const DramConfig& dram);
 // A read to a closed bank: tRCD + CL + BL/2 tCK. Ideal memory: ideal_latency_ns.
 double DramRowMissLatencyNs(const DramConfig& dram);
 

@@ -26,7 +26,7 @@ ResourceRates RatesOf(const ArchConfig& arch) {
   const double period_ns = double(hw.core_period_ps) / 1000.0;
   ResourceRates r;
   r.dram_bytes = hw.dram_bytes_per_cycle;
-  const double latency_cycles = DramRowHitLatencyNs(arch.dram) / period_ns;
+  const double latency_cycles = DramShortestLatencyNs(arch.dram) / period_ns;
   r.concurrent_bytes =
       double(arch.dma.max_outstanding) * RequestBytes(arch.dram) / std::max(1.0, latency_cycles);
   r.decoder_bytes = double(arch.packing.decoder_bytes_per_cycle);

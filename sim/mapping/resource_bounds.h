@@ -5,7 +5,8 @@
 // Each bound is a true lower bound on the cycles the engine can take:
 //  - dram_bandwidth: bytes / peak bytes per cycle (Williams et al. 2009);
 //  - request_concurrency: bytes / (requests in flight x request bytes /
-//    the shortest request latency), Little's law (Little 1961);
+//    the shortest request latency, a row-hit write or read), Little's
+//    law (Little 1961);
 //  - trit_decoder: packed base-3 bytes / decoder bytes per cycle;
 //  - tree_array: products / (T x F) per cycle;
 //  - vector_unit: the vector unit's own cycles from its cost model;
