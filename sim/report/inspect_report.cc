@@ -55,12 +55,17 @@ std::string G(double v) {
   return buf;
 }
 
+// A bound in tokens/s; null when unbounded.
+nlohmann::ordered_json FiniteOrNull(double v) {
+  return std::isfinite(v) ? nlohmann::ordered_json(v) : nullptr;
+}
+
 // Tokens/s of each resource; null for a resource the phase does not use.
 nlohmann::ordered_json PerResourceJson(const PhaseBounds& phase) {
   nlohmann::ordered_json j;
   for (size_t r = 0; r < kResourceCount; ++r) {
     const double v = phase.tokens_per_second[r];
-    j[ResourceName(Resource(r))] = std::isfinite(v) ? nlohmann::ordered_json(v) : nullptr;
+    j[ResourceName(Resource(r))] = FiniteOrNull(v);
   }
   return j;
 }
@@ -70,10 +75,14 @@ nlohmann::ordered_json BoundsJson(const WorkloadBounds& b) {
   if (b.decode.present) {
     j["decode_tokens_per_second"] = PerResourceJson(b.decode);
     j["decode_bound_by"] = ResourceName(b.decode.bound_by);
+    j["decode_serial_compute_tokens_per_second"] =
+        FiniteOrNull(b.decode.serial_compute_tokens_per_second);
   }
   if (b.prefill.present) {
     j["prefill_tokens_per_second"] = PerResourceJson(b.prefill);
     j["prefill_bound_by"] = ResourceName(b.prefill.bound_by);
+    j["prefill_serial_compute_tokens_per_second"] =
+        FiniteOrNull(b.prefill.serial_compute_tokens_per_second);
   }
   return j;
 }
@@ -89,6 +98,11 @@ void PrintPhaseBounds(const nlohmann::ordered_json& bounds, const std::string& p
     separator = ", ";
   }
   out << " tokens/s; bound by " << bounds[phase + "_bound_by"].get<std::string>() << "\n";
+  const auto& serial = bounds[phase + "_serial_compute_tokens_per_second"];
+  if (serial.is_null()) return;
+  out << "  " << phase << (phase == "decode" ? " serial  " : " serial ") << " "
+      << G(serial.get<double>())
+      << " tokens/s: the tree array and the vector unit take turns, so their cycles add\n";
 }
 
 // The tree array's roofline verdict, corrected by the binding resource of the

@@ -1,5 +1,6 @@
 #include "report/workload_bounds.h"
 
+#include <algorithm>
 #include <limits>
 #include <vector>
 
@@ -38,8 +39,20 @@ ResourceDemand TileDemand(const WorkItem& item, const ArchConfig& arch) {
   return d;
 }
 
+// The tile's cycles on the compute timeline can be no fewer than this: the
+// largest of its decoder, tree-array and vector-unit bounds.
+double SerialComputeCycles(const ResourceDemand& tile, const ResourceRates& rates) {
+  const ResourceBounds b = BoundsOf(tile, rates);
+  return std::max({b.cycles[size_t(Resource::kTritDecoder)], b.cycles[size_t(Resource::kTreeArray)],
+                   b.cycles[size_t(Resource::kVectorUnit)]});
+}
+
 void Finish(PhaseBounds& phase, const ResourceRates& rates, double core_hz) {
   if (!phase.present) return;
+  const double serial_seconds = phase.serial_compute_cycles / core_hz;
+  phase.serial_compute_tokens_per_second = serial_seconds > 0
+                                               ? double(phase.tokens) / serial_seconds
+                                               : std::numeric_limits<double>::infinity();
   const ResourceBounds bounds = BoundsOf(phase.demand, rates);
   double lowest = std::numeric_limits<double>::infinity();
   for (size_t r = 0; r < kResourceCount; ++r) {
@@ -60,6 +73,7 @@ WorkloadBounds BoundsOfWorkload(const ModelConfig& model, const ArchConfig& arch
   WorkloadBounds out;
   auto trace = BuildTrace(model, workload);
   Tiler tiler(arch, SimOptions{});
+  const ResourceRates rates = RatesOf(arch);
   TraceRecord record;
   TraceStep step;
   std::vector<WorkItem> items;
@@ -75,9 +89,12 @@ WorkloadBounds BoundsOfWorkload(const ModelConfig& model, const ArchConfig& arch
     items.clear();
     tiler.Plan(record.op, step, index++, items);
     PhaseBounds& phase = record.op.phase == Phase::kPrefill ? out.prefill : out.decode;
-    for (const WorkItem& item : items) phase.demand.Add(TileDemand(item, arch));
+    for (const WorkItem& item : items) {
+      const ResourceDemand tile = TileDemand(item, arch);
+      phase.demand.Add(tile);
+      phase.serial_compute_cycles += SerialComputeCycles(tile, rates);
+    }
   }
-  const ResourceRates rates = RatesOf(arch);
   const double core_hz = 1e12 / double(tiler.rates().core_period_ps);
   Finish(out.prefill, rates, core_hz);
   Finish(out.decode, rates, core_hz);

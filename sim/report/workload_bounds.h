@@ -23,6 +23,14 @@ struct PhaseBounds {
   // Tokens/s each resource allows (0 demand: unbounded, +infinity).
   std::array<double, kResourceCount> tokens_per_second{};
   Resource bound_by = Resource::kDramBandwidth;  // the smallest ceiling
+  // The tree array and the vector unit take turns on one in-order compute
+  // timeline (sim/hw/sequencer.h), so their tiles' cycles add up: the sum
+  // over tiles of each tile's largest compute-side bound (decoder, trees or
+  // vector unit) is a lower bound on the phase's cycles too. It is tighter
+  // than any one resource when array-bound and vector-bound ops alternate
+  // (long-context attention between decoder-bound GEMMs).
+  double serial_compute_cycles = 0;
+  double serial_compute_tokens_per_second = 0;  // +infinity without compute
 };
 
 struct WorkloadBounds {
