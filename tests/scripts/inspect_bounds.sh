@@ -67,6 +67,29 @@ for model in wren-0.7b meadowlark-3b condor-13b; do
 done
 check meadowlark-3b heron-edge-ddr4 --prefill 32 --decode 0
 check wren-0.7b osprey-card-hbm2e --decode 2 --batch 8 --context 64
+# The issue's worked figures: finch's decoder expands 32 B/cycle x 0.8 GHz =
+# 25.6 GB/s against 51.2 GB/s of LPDDR5, osprey's 256 B/cycle x 1.2 GHz =
+# 307 GB/s against 460.8 GB/s of HBM2E (arithmetic on the configs), so every
+# decode GEMM inside the blocks is bound by the trit decoder; widened to
+# 1024 B/cycle (above either DRAM's bytes per cycle), by DRAM bandwidth.
+gemms_bound_by() {  # arch expected extra-args...
+  local arch=$1 expected=$2
+  shift 2
+  "$BIN" run --model models/meadowlark-3b.yaml --arch "configs/$arch.yaml" --set model.layers=2 \
+    --decode 1 -q --csv "$OUT/g.csv" "$@" || { echo "FAIL run $arch $*"; failed=1; return; }
+  /usr/bin/python3 - "$OUT/g.csv" "$expected" "$arch $*" <<'PY' || failed=1
+import csv, sys
+rows = [r for r in csv.DictReader(open(sys.argv[1])) if r["kind"] == "gemm" and int(r["layer"]) >= 0]
+wrong = sorted({r["bound_by"] for r in rows} - {sys.argv[2]})
+if not rows or wrong:
+    print(f"FAIL {sys.argv[3]}: decode GEMMs bound by {wrong}, expected {sys.argv[2]}")
+    sys.exit(1)
+PY
+}
+for arch in finch-phone-lpddr5 osprey-card-hbm2e; do
+  gemms_bound_by "$arch" trit_decoder
+  gemms_bound_by "$arch" dram_bandwidth --set arch.packing.decoder_bytes_per_cycle=1024
+done
 if ! grep -qa __asan_init "$BIN"; then
   for model in wren-0.7b meadowlark-3b condor-13b; do
     for arch in finch-phone-lpddr5 heron-edge-ddr4 osprey-card-hbm2e; do
