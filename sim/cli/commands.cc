@@ -23,6 +23,7 @@
 #include "report/resolved_config.h"
 #include "report/run_report.h"
 #include "run/simulation.h"
+#include "trace/trace_format.h"
 #include "trace/trace_reader.h"
 #include "trace/trace_writer.h"
 
@@ -105,25 +106,56 @@ int InspectCommand(const Args& args) {
   return 0;
 }
 
+// The sequences of `--mix T@C,...`: usage error when malformed.
+std::vector<SequenceSpan> MixOption(const std::string& text) {
+  std::vector<SequenceSpan> mix;
+  const std::string error = ParseMixText(text, mix);
+  if (!error.empty()) throw UsageError("--mix: " + error);
+  return mix;
+}
+
+// A mixed step is a prefill when any sequence brings more than one token or
+// starts an empty cache; a decode step otherwise.
+Phase PhaseOfMix(const std::vector<SequenceSpan>& mix) {
+  for (const SequenceSpan& s : mix) {
+    if (s.tokens > 1 || s.context == 0) return Phase::kPrefill;
+  }
+  return Phase::kDecode;
+}
+
 int TraceCommand(const Args& args) {
   InputOptions in;
-  std::string out_path;
+  std::string out_path, mix_text;
   po::options_description desc("trace options");
   desc.add_options()("help,h", "show this help");
   AddInputOptions(desc, in, false);
+  desc.add_options()("mix", po::value(&mix_text)->value_name("T@C,..."),
+                     "one mixed step instead of the workload options (trace format 2): each "
+                     "sequence's new tokens T at context C, e.g. 512@0,1@700,1@300");
   desc.add_options()("out", po::value(&out_path)->value_name("FILE"),
                      "where to write the trace (required)");
   if (WantsHelp(args)) {
-    PrintHelp("usage: tritsim trace [--model FILE] [workload options] --out FILE", desc);
+    PrintHelp("usage: tritsim trace [--model FILE] [workload options | --mix T@C,...] --out FILE",
+              desc);
     return 0;
   }
   po::variables_map vm;
   ParseCommandLine("trace", args, desc, vm);
+  FinishInputOptions(vm, in);
   if (out_path.empty()) throw UsageError("trace: --out FILE is required");
+  if (vm.count("mix") && in.workload_given) {
+    throw UsageError("trace: --mix replaces --prefill, --decode, --context and --batch; give one");
+  }
   CheckOutputPaths({{"--out", out_path, OutputKind::kFile}});
   const ModelConfig model = LoadModel(in);
-  ValidateWorkload(in.workload, model);
-  auto source = BuildTrace(model, in.workload);
+  std::unique_ptr<TraceSource> source;
+  if (vm.count("mix")) {
+    const std::vector<SequenceSpan> mix = MixOption(mix_text);
+    source = BuildMixedStepTrace(model, PhaseOfMix(mix), mix);
+  } else {
+    ValidateWorkload(in.workload, model);
+    source = BuildTrace(model, in.workload);
+  }
   // Streamed: a long decode trace never sits in memory whole.
   StreamFileAtomically(out_path, [&source](std::ostream& out) { WriteTrace(*source, out); });
   std::cerr << "tritsim trace: wrote " << out_path << "\n";

@@ -67,7 +67,7 @@ void Sequencer::IssueThread() {
       if (!trace_.next(record)) break;
       if (record.is_step) {
         step = record.step;
-        const uint64_t tokens = uint64_t(step.tokens) * uint64_t(step.batch);
+        const uint64_t tokens = uint64_t(step.new_tokens());
         if (step.phase == Phase::kPrefill) {
           prefill_tokens_ += tokens;
           saw_prefill_ = true;

@@ -50,8 +50,14 @@ uint64_t RowKeys(const TraceOp& op, uint64_t rows) {
   return rows * before + rows * (rows + 1) / 2;
 }
 
+// Sequences an attention or KV-append op runs for: its group of a mixed
+// step, or the whole batch of a uniform step.
+uint64_t SequencesOf(const TraceOp& op, const TraceStep& step) {
+  return uint64_t(std::max<int64_t>(1, op.sequences > 0 ? op.sequences : step.batch));
+}
+
 uint64_t AllRowKeys(const TraceOp& op, const TraceStep& step) {
-  const uint64_t batch = uint64_t(std::max<int64_t>(1, step.batch));
+  const uint64_t batch = SequencesOf(op, step);
   const uint64_t rows = uint64_t(op.m) / batch;
   return batch * RowKeys(op, rows);
 }
@@ -281,7 +287,7 @@ void Tiler::PlanAttention(const TraceOp& op, const TraceStep& step, int64_t op_i
   // formulation of Dao et al. 2022); K (for scores) or V (for values) of the
   // whole context streams through the slots once per step. The stream is cut
   // into tiles of whole key vectors (one head, one position, one sequence).
-  const uint64_t batch = uint64_t(std::max<int64_t>(1, step.batch));
+  const uint64_t batch = SequencesOf(op, step);
   const uint64_t context = uint64_t(std::max<int64_t>(1, op.context));
   const uint64_t vector_bytes = BitsToBytes(uint64_t(op.head_dim), double(op.kv_bits));
   CheckTileFits(op, vector_bytes, rates_.slot_bytes, "KV-cache");
@@ -332,11 +338,11 @@ void Tiler::PlanElementwiseTransfers(const TraceOp& op, const TraceStep& step, W
     item.load_bytes = uint64_t(op.n) * kNormGainBytes;
     item.load_address = WeightAddress(op, item.load_bytes);
   } else if (op.kind == OpKind::kKvAppend) {
-    item.store_address =
-        KvAddress(op) +
-        uint64_t(std::max<int64_t>(0, step.context)) *
-            BitsToBytes(uint64_t(op.n) / 2 * uint64_t(std::max<int64_t>(1, step.batch)),
-                        double(op.kv_bits));
+    // Where the caches end: a mixed step's group gives its own context.
+    const int64_t context = op.sequences > 0 ? op.context : step.context;
+    item.store_address = KvAddress(op) + uint64_t(std::max<int64_t>(0, context)) *
+                                             BitsToBytes(uint64_t(op.n) / 2 * SequencesOf(op, step),
+                                                         double(op.kv_bits));
     item.store_bytes = BitsToBytes(elements, double(op.kv_bits));
   }
 }

@@ -1,7 +1,10 @@
 #include "model/trace_builder.h"
 
+#include <algorithm>
 #include <utility>
 #include <vector>
+
+#include "trace/trace_format.h"
 
 namespace tritsim {
 namespace {
@@ -9,9 +12,39 @@ namespace {
 // Shapes of one step, fixed while its ops are emitted.
 struct StepShape {
   TraceStep step;
-  int64_t rows = 0;  // m of per-token ops: batch x tokens
-  int64_t keys = 0;  // keys attended by the last row: context + tokens
+  int64_t rows = 0;  // m of per-token ops: every new token of the step
 };
+
+// Sequences of a step that share new tokens and context: attention runs
+// once per group over their own caches.
+struct AttentionGroup {
+  int64_t sequences = 0;  // 0: the step's batch (a uniform step)
+  int64_t tokens = 1;
+  int64_t context = 0;  // tokens in each cache before the step
+  int64_t rows(const TraceStep& step) const {
+    return (sequences ? sequences : step.batch) * tokens;
+  }
+  int64_t keys() const { return context + tokens; }  // attended by the last row
+};
+
+// One group for a uniform step; one per distinct (tokens, context) of a
+// mixed step, in order of first appearance.
+std::vector<AttentionGroup> GroupsOf(const TraceStep& step) {
+  if (!step.mixed()) return {AttentionGroup{0, step.tokens, step.context}};
+  std::vector<AttentionGroup> groups;
+  for (const SequenceSpan& span : step.mix) {
+    auto same = [&](const AttentionGroup& g) {
+      return g.tokens == span.tokens && g.context == span.context;
+    };
+    auto it = std::find_if(groups.begin(), groups.end(), same);
+    if (it == groups.end()) {
+      groups.push_back(AttentionGroup{1, span.tokens, span.context});
+    } else {
+      ++it->sequences;
+    }
+  }
+  return groups;
+}
 
 // The op every other op of a step starts from: phase, step, precisions.
 TraceOp BaseOp(const ModelConfig& model, const StepShape& shape, const char* name, OpKind kind,
@@ -51,17 +84,31 @@ TraceOp GemmOp(const ModelConfig& model, const StepShape& shape, const char* nam
   return op;
 }
 
-// An attention op over the cache. Per head: scores are [m x head_dim] x
-// [head_dim x keys], values are [m x keys] x [keys x head_dim].
-TraceOp AttentionOp(const ModelConfig& model, const StepShape& shape, const char* name, OpKind kind,
-                    int64_t n, int64_t k) {
+// An attention op of one group over its caches. Per head: scores are
+// [m x head_dim] x [head_dim x keys], values are [m x keys] x [keys x head_dim].
+TraceOp AttentionOp(const ModelConfig& model, const StepShape& shape, const AttentionGroup& group,
+                    const char* name, OpKind kind, int64_t n, int64_t k) {
   TraceOp op = BaseOp(model, shape, name, kind, n);
+  op.m = group.rows(shape.step);
   op.k = k;
   op.heads = model.heads;
   op.kv_heads = model.kv_heads;
   op.head_dim = model.head_dim;
-  op.context = shape.keys;
-  op.causal = shape.step.tokens > 1;
+  op.context = group.keys();
+  op.causal = group.tokens > 1;
+  op.sequences = group.sequences;
+  return op;
+}
+
+// This step's keys and values of one group, written into its caches.
+TraceOp KvAppendOp(const ModelConfig& model, const StepShape& shape, const AttentionGroup& group,
+                   int64_t n) {
+  TraceOp op = BaseOp(model, shape, "attn.kv_append", OpKind::kKvAppend, n);
+  op.m = group.rows(shape.step);
+  if (group.sequences > 0) {  // a mixed step's group: where its caches end
+    op.context = group.context;
+    op.sequences = group.sequences;
+  }
   return op;
 }
 
@@ -73,10 +120,13 @@ void AppendAttention(const ModelConfig& m, const StepShape& s, std::vector<Trace
   ops.push_back(GemmOp(m, s, "attn.qkv", TensorClass::kAttention, m.attention_weights, m.width,
                        q_width + 2 * kv_width));
   ops.push_back(BaseOp(m, s, "attn.rope", OpKind::kRope, q_width + kv_width));
-  ops.push_back(BaseOp(m, s, "attn.kv_append", OpKind::kKvAppend, 2 * kv_width));
-  ops.push_back(AttentionOp(m, s, "attn.scores", OpKind::kAttnScores, s.keys, m.head_dim));
-  ops.push_back(AttentionOp(m, s, "attn.softmax", OpKind::kSoftmax, s.keys, 0));
-  ops.push_back(AttentionOp(m, s, "attn.values", OpKind::kAttnValues, m.head_dim, s.keys));
+  const std::vector<AttentionGroup> groups = GroupsOf(s.step);
+  for (const AttentionGroup& g : groups) ops.push_back(KvAppendOp(m, s, g, 2 * kv_width));
+  for (const AttentionGroup& g : groups) {
+    ops.push_back(AttentionOp(m, s, g, "attn.scores", OpKind::kAttnScores, g.keys(), m.head_dim));
+    ops.push_back(AttentionOp(m, s, g, "attn.softmax", OpKind::kSoftmax, g.keys(), 0));
+    ops.push_back(AttentionOp(m, s, g, "attn.values", OpKind::kAttnValues, m.head_dim, g.keys()));
+  }
   ops.push_back(BaseOp(m, s, "attn.out_quant", OpKind::kQuantize, q_width));
   ops.push_back(
       GemmOp(m, s, "attn.out", TensorClass::kAttention, m.attention_weights, q_width, m.width));
@@ -114,10 +164,35 @@ void AppendHead(const ModelConfig& m, const StepShape& s, std::vector<TraceOp>& 
 class BuiltTrace : public TraceSource {
  public:
   BuiltTrace(const ModelConfig& model, const WorkloadConfig& workload) : model_(model) {
-    header_.version = 1;
+    header_.version = kTraceVersion;
     header_.model = model.name;
     header_.workload = workload;
     total_steps_ = (workload.prefill_tokens > 0 ? 1 : 0) + workload.decode_tokens;
+  }
+
+  // One mixed step (trace version 2). The header's workload summarises it:
+  // the longest prompt chunk as the prefill, or one decode step; the
+  // shortest context; the sequences as the batch.
+  BuiltTrace(const ModelConfig& model, Phase phase, const std::vector<SequenceSpan>& mix)
+      : model_(model) {
+    header_.version = kTraceVersionMixed;
+    header_.model = model.name;
+    mixed_.phase = phase;
+    mixed_.batch = int64_t(mix.size());
+    mixed_.tokens = 0;
+    mixed_.context = 0;
+    mixed_.mix = mix;
+    WorkloadConfig& w = header_.workload;
+    w.batch = mixed_.batch;
+    w.context_tokens = mix.front().context;
+    int64_t longest = 0;
+    for (const SequenceSpan& span : mix) {
+      longest = std::max(longest, span.tokens);
+      w.context_tokens = std::min(w.context_tokens, span.context);
+    }
+    w.prefill_tokens = phase == Phase::kPrefill ? longest : 0;
+    w.decode_tokens = phase == Phase::kDecode ? 1 : 0;
+    total_steps_ = 1;
   }
 
   const TraceHeader& header() const override { return header_; }
@@ -139,6 +214,7 @@ class BuiltTrace : public TraceSource {
  private:
   // Steps are numbered 0.. across the run; the prefill, if any, is number 0.
   TraceStep StepAt(int64_t index) const {
+    if (mixed_.mixed()) return mixed_;
     const WorkloadConfig& w = header_.workload;
     const bool has_prefill = w.prefill_tokens > 0;
     TraceStep step;
@@ -160,8 +236,7 @@ class BuiltTrace : public TraceSource {
 
   void StartStep(int64_t index) {
     shape_.step = StepAt(index);
-    shape_.rows = shape_.step.batch * shape_.step.tokens;
-    shape_.keys = shape_.step.context + shape_.step.tokens;
+    shape_.rows = shape_.step.new_tokens();
     prologue_.clear();
     block_.clear();
     epilogue_.clear();
@@ -196,6 +271,7 @@ class BuiltTrace : public TraceSource {
   int64_t step_index_ = 0;   // next step to start
   int64_t op_index_ = 0;     // next op within the current step
   int64_t ops_in_step_ = 0;  // 0 before the first step
+  TraceStep mixed_;          // the one step of a mixed trace; mix empty otherwise
   StepShape shape_;
   std::vector<TraceOp> prologue_;  // embed
   std::vector<TraceOp> block_;     // one decoder block, layer field unset
@@ -206,6 +282,11 @@ class BuiltTrace : public TraceSource {
 
 std::unique_ptr<TraceSource> BuildTrace(const ModelConfig& model, const WorkloadConfig& workload) {
   return std::make_unique<BuiltTrace>(model, workload);
+}
+
+std::unique_ptr<TraceSource> BuildMixedStepTrace(const ModelConfig& model, Phase phase,
+                                                 const std::vector<SequenceSpan>& mix) {
+  return std::make_unique<BuiltTrace>(model, phase, mix);
 }
 
 }  // namespace tritsim

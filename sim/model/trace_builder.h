@@ -4,6 +4,7 @@
 #pragma once
 
 #include <memory>
+#include <vector>
 
 #include "config/model_config.h"
 #include "config/workload_config.h"
@@ -13,5 +14,13 @@ namespace tritsim {
 
 // REQUIRES: model and workload validated (ValidateWorkload).
 std::unique_ptr<TraceSource> BuildTrace(const ModelConfig& model, const WorkloadConfig& workload);
+
+// One mixed step (trace format version 2): the sequences of `mix` (at least
+// one) share the projections as one GEMM of all their new tokens; attention
+// and the KV append run per group of sequences with equal new tokens and
+// context, each over its own caches. REQUIRES: model validated; every
+// span's tokens >= 1 and context >= 0.
+std::unique_ptr<TraceSource> BuildMixedStepTrace(const ModelConfig& model, Phase phase,
+                                                 const std::vector<SequenceSpan>& mix);
 
 }  // namespace tritsim

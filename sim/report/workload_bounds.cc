@@ -83,7 +83,7 @@ WorkloadBounds BoundsOfWorkload(const ModelConfig& model, const ArchConfig& arch
       step = record.step;
       PhaseBounds& phase = step.phase == Phase::kPrefill ? out.prefill : out.decode;
       phase.present = true;
-      phase.tokens += uint64_t(step.tokens) * uint64_t(step.batch);
+      phase.tokens += uint64_t(step.new_tokens());
       continue;
     }
     items.clear();

@@ -1,5 +1,6 @@
 #include "trace/trace_format.h"
 
+#include <algorithm>
 #include <charconv>
 #include <iterator>
 
@@ -99,6 +100,41 @@ std::string FormatTraceDouble(double value) {
   char buffer[64];  // shortest round-trip form of any double fits in 32 chars
   auto result = std::to_chars(std::begin(buffer), std::end(buffer), value);
   return std::string(buffer, result.ptr);
+}
+
+namespace {
+
+// A whole number in [min, max], or false.
+bool MixNumber(std::string_view text, int64_t min, int64_t max, int64_t& value) {
+  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), value);
+  return ec == std::errc() && end == text.data() + text.size() && !text.empty() && value >= min &&
+         value <= max;
+}
+
+}  // namespace
+
+std::string ParseMixText(std::string_view text, std::vector<SequenceSpan>& out) {
+  out.clear();
+  size_t start = 0;
+  while (start <= text.size()) {
+    const size_t comma = std::min(text.find(',', start), text.size());
+    const std::string_view entry = text.substr(start, comma - start);
+    const size_t at = entry.find('@');
+    SequenceSpan span;
+    if (at == std::string_view::npos ||
+        !MixNumber(entry.substr(0, at), 1, kTraceMaxContext, span.tokens) ||
+        !MixNumber(entry.substr(at + 1), 0, kTraceMaxContext, span.context)) {
+      return "'" + std::string(entry) + "' is not TOKENS@CONTEXT (TOKENS 1 to " +
+             std::to_string(kTraceMaxContext) + ", CONTEXT 0 to " +
+             std::to_string(kTraceMaxContext) + "), in a list like 512@0,1@700";
+    }
+    if (int64_t(out.size()) == kTraceMaxBatch) {
+      return "more than " + std::to_string(kTraceMaxBatch) + " sequences";
+    }
+    out.push_back(span);
+    start = comma + 1;
+  }
+  return "";
 }
 
 }  // namespace tritsim

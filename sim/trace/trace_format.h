@@ -9,6 +9,7 @@
 #include <cstdint>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "config/model_config.h"
 #include "trace/trace_op.h"
@@ -17,8 +18,11 @@ namespace tritsim {
 
 // First token of the first line of every trace file, followed by the version.
 inline constexpr const char* kTraceMagic = "tritsim-trace";
-// The only format version this build reads and writes.
+// Format versions this build reads and writes: 1 (uniform steps) and 2
+// (adds mixed steps and the ops' `sequences` field). The writer keeps a
+// source's version, so a version-1 trace is written back byte for byte.
 inline constexpr int kTraceVersion = 1;
+inline constexpr int kTraceVersionMixed = 2;
 
 // Reader limits. They reject corrupt numbers early; none is a hardware limit.
 // Each is above what the builder can emit for a workload the config loader
@@ -54,6 +58,11 @@ std::string AllowedOpKinds();
 std::string AllowedPhases();
 std::string AllowedTensorClasses();
 std::string AllowedWeightFormats();
+
+// Parses a mixed step's sequences, "T@C,T@C,..." (TOKENS 1 to
+// kTraceMaxContext new tokens at CONTEXT 0 to kTraceMaxContext cached ones;
+// at most kTraceMaxBatch entries) into `out`. Returns "" or what is wrong.
+std::string ParseMixText(std::string_view text, std::vector<SequenceSpan>& out);
 
 // Shortest decimal text that reads back to exactly `value` (std::to_chars),
 // so read -> write of a trace is byte-identical.

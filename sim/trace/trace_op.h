@@ -7,6 +7,7 @@
 
 #include <cstdint>
 #include <string>
+#include <vector>
 
 #include "config/model_config.h"
 
@@ -51,19 +52,48 @@ struct TraceOp {
   int64_t context = 0;  // keys attended by the last row of this step
   bool causal = false;  // prefill: row i attends to context - m + i + 1 keys
 
+  // Attention and KV append of a mixed step (trace format version 2): the
+  // sequences of this op's group, which share new tokens and context; 0: the
+  // step's batch (every op of a uniform step).
+  int64_t sequences = 0;
+
   int act_bits = 8;            // bits per activation element in and out
   int kv_bits = 8;             // bits per KV-cache element
   double zero_fraction = 0.0;  // fraction of zero trits in the weights (ternary only)
 };
 
+// One sequence of a mixed step: its new tokens (a prompt chunk, or 1 for a
+// decode) and the tokens already in its cache.
+struct SequenceSpan {
+  int64_t tokens = 1;
+  int64_t context = 0;
+  bool operator==(const SequenceSpan& o) const {
+    return tokens == o.tokens && context == o.context;
+  }
+};
+
 // One step of the workload (the prefill, or one decode token), the header
 // record in front of its ops.
+//
+// A uniform step runs `batch` sequences of `tokens` new tokens at `context`.
+// A mixed step (trace format version 2; serving with continuous batching)
+// lists each sequence in `mix` instead: `batch` is mix.size(), and `tokens`
+// and `context` are 0.
 struct TraceStep {
   Phase phase = Phase::kDecode;
   int64_t step = 0;
   int64_t tokens = 1;  // new tokens per sequence in this step
   int64_t batch = 1;
   int64_t context = 0;  // tokens in the cache before this step
+  std::vector<SequenceSpan> mix;
+  bool mixed() const { return !mix.empty(); }
+  // New tokens of all sequences: the rows of the step's projections.
+  int64_t new_tokens() const {
+    if (!mixed()) return tokens * batch;
+    int64_t n = 0;
+    for (const SequenceSpan& s : mix) n += s.tokens;
+    return n;
+  }
 };
 
 }  // namespace tritsim

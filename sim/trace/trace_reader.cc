@@ -1,5 +1,6 @@
 #include "trace/trace_reader.h"
 
+#include <algorithm>
 #include <charconv>
 #include <cstdint>
 #include <filesystem>
@@ -96,6 +97,13 @@ class Fields {
          const std::vector<const char*>& allowed)
       : record_(record), allowed_(allowed) {
     for (size_t i = 1; i < words.size(); ++i) Add(words[i]);
+  }
+
+  bool Has(const char* key) const {
+    for (const auto& field : fields_) {
+      if (field.first == key) return true;
+    }
+    return false;
   }
 
   std::string_view Text(const char* key) const {
@@ -209,14 +217,38 @@ WorkloadConfig ParseWorkload(const std::vector<std::string_view>& words) {
   return w;
 }
 
-TraceStep ParseStep(const std::vector<std::string_view>& words) {
+// "T@C,T@C,...", one entry per sequence.
+std::vector<SequenceSpan> ParseMix(std::string_view text, int64_t batch) {
+  std::vector<SequenceSpan> mix;
+  const std::string error = ParseMixText(text, mix);
+  if (!error.empty()) throw LineError{"step.mix", error};
+  if (int64_t(mix.size()) != batch) {
+    throw LineError{"step.mix", "has " + std::to_string(mix.size()) + " entries, batch=" +
+                                    std::to_string(batch) + " (one TOKENS@CONTEXT per sequence)"};
+  }
+  return mix;
+}
+
+// Version 2 steps are uniform (tokens, context) or mixed (mix), not both.
+TraceStep ParseStep(const std::vector<std::string_view>& words, int version) {
   static const std::vector<const char*> kKeys = {"phase", "index", "tokens", "batch", "context"};
-  const Fields f("step", words, kKeys);
+  static const std::vector<const char*> kKeysV2 = {"phase", "index",   "tokens",
+                                                   "batch", "context", "mix"};
+  const Fields f("step", words, version >= kTraceVersionMixed ? kKeysV2 : kKeys);
   TraceStep s;
   s.phase = f.Enum("phase", ParsePhase, AllowedPhases());
   s.step = f.Int("index", 0, kTraceMaxSteps);
-  s.tokens = f.Int("tokens", 1, kTraceMaxContext);
   s.batch = f.Int("batch", 1, kTraceMaxBatch);
+  if (f.Has("mix")) {
+    if (f.Has("tokens") || f.Has("context")) {
+      throw LineError{"step.mix", "a mixed step gives mix instead of tokens and context"};
+    }
+    s.mix = ParseMix(f.Text("mix"), s.batch);
+    s.tokens = 0;
+    s.context = 0;
+    return s;
+  }
+  s.tokens = f.Int("tokens", 1, kTraceMaxContext);
   s.context = f.Int("context", 0, kTraceMaxContext);
   return s;
 }
@@ -254,8 +286,17 @@ void CheckOpConsistency(const TraceOp& op) {
 // An op works on the rows of its step: batch x tokens, or one row per
 // sequence (the output head and its norm look at the last position only).
 void CheckRowsMatchStep(const TraceOp& op, const TraceStep& step) {
-  const int64_t all_rows = step.batch * step.tokens;
+  if (op.sequences > step.batch) {
+    throw LineError{"op.sequences",
+                    std::to_string(op.sequences) +
+                        " is more than the step's batch=" + std::to_string(step.batch)};
+  }
+  if (op.sequences > 0 && !step.mixed()) {
+    throw LineError{"op.sequences", "only ops of a mixed step name their sequences; 0 here"};
+  }
+  const int64_t all_rows = step.new_tokens();
   if (op.m == all_rows || op.m == step.batch) return;
+  if (op.sequences > 0 && op.m <= all_rows) return;  // a group of a mixed step
   throw LineError{"op.m", std::to_string(op.m) + " does not match its step (batch " +
                               std::to_string(step.batch) + " x tokens " +
                               std::to_string(step.tokens) + " = " + std::to_string(all_rows) +
@@ -283,12 +324,17 @@ void CheckCountersFit(const TraceOp& op) {
 }
 
 // Parses an op line; phase and step come from the enclosing step.
-TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& step) {
+TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& step, int version) {
   static const std::vector<const char*> kKeys = {
       "layer",  "name",     "kind",    "tensor",       "weights",  "m",
       "n",      "k",        "heads",   "kv_heads",     "head_dim", "context",
       "causal", "act_bits", "kv_bits", "zero_fraction"};
-  const Fields f("op", words, kKeys);
+  static const std::vector<const char*> kKeysV2 = {
+      "layer",  "name",     "kind",    "tensor",        "weights",  "m",
+      "n",      "k",        "heads",   "kv_heads",      "head_dim", "context",
+      "causal", "act_bits", "kv_bits", "zero_fraction", "sequences"};
+  const bool v2 = version >= kTraceVersionMixed;
+  const Fields f("op", words, v2 ? kKeysV2 : kKeys);
   TraceOp op;
   op.phase = step.phase;
   op.step = step.step;
@@ -315,6 +361,7 @@ TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& ste
   op.act_bits = f.OneOf("act_bits", kAllowedBits);
   op.kv_bits = f.OneOf("kv_bits", kAllowedBits);
   op.zero_fraction = f.Fraction("zero_fraction");
+  if (v2) op.sequences = f.Int("sequences", 0, kTraceMaxBatch);
   CheckOpConsistency(op);
   CheckRowsMatchStep(op, step);
   CheckCountersFit(op);
@@ -323,7 +370,8 @@ TraceOp ParseOp(const std::vector<std::string_view>& words, const TraceStep& ste
 
 int ParseMagic(std::string_view line) {
   const std::vector<std::string_view> words = SplitWords(line);
-  const std::string expected = std::string(kTraceMagic) + " " + std::to_string(kTraceVersion);
+  const std::string expected = std::string(kTraceMagic) + " " + std::to_string(kTraceVersion) +
+                               "' or '" + kTraceMagic + " " + std::to_string(kTraceVersionMixed);
   if (words.empty() || words[0] != kTraceMagic) {
     throw LineError{"", "not a tritsim trace: the first line must be '" + expected + "'"};
   }
@@ -334,9 +382,10 @@ int ParseMagic(std::string_view line) {
     throw LineError{"version", "'" + std::string(line) + "' is not a version line, expected '" +
                                    expected + "'"};
   }
-  if (version != kTraceVersion) {
+  if (version != kTraceVersion && version != kTraceVersionMixed) {
     throw LineError{"version", "unsupported trace version " + std::to_string(version) +
-                                   ", supported " + std::to_string(kTraceVersion)};
+                                   ", supported " + std::to_string(kTraceVersion) + " | " +
+                                   std::to_string(kTraceVersionMixed)};
   }
   return version;
 }
@@ -450,14 +499,14 @@ class TraceFileReader : public TraceSource {
     const std::string_view type = words_[0];
     if (type == "step") {
       record.is_step = true;
-      record.step = ParseStep(words_);
+      record.step = ParseStep(words_, header_.version);
       CheckStepOrder(record.step);
       return true;
     }
     if (type == "op") {
       if (!in_step_) throw LineError{"op", "op before any step line"};
       record.is_step = false;
-      record.op = ParseOp(words_, step_);
+      record.op = ParseOp(words_, step_, header_.version);
       return true;
     }
     if (type == "end") return End();
@@ -469,10 +518,11 @@ class TraceFileReader : public TraceSource {
   }
 
   // Prefill: only as the first step, index 0, header's prompt length.
-  // Decode: indices 0, 1, 2, ... up to the header's count. Batch as header.
+  // Decode: indices 0, 1, 2, ... up to the header's count. Batch as header
+  // (a mixed step: at most the header's batch).
   void CheckStepOrder(const TraceStep& s) {
     const WorkloadConfig& w = header_.workload;
-    if (s.batch != w.batch) {
+    if (s.mixed() ? s.batch > w.batch : s.batch != w.batch) {
       throw LineError{"step.batch", std::to_string(s.batch) + " differs from the header's batch=" +
                                         std::to_string(w.batch)};
     }
@@ -499,9 +549,12 @@ class TraceFileReader : public TraceSource {
       throw LineError{"step.index",
                       std::to_string(s.step) + " is not allowed, a prefill is step 0"};
     }
-    if (s.tokens != w.prefill_tokens) {
-      throw LineError{"step.tokens",
-                      std::to_string(s.tokens) +
+    // A mixed prefill's longest prompt chunk stands for the header's prefill.
+    int64_t tokens = s.tokens;
+    for (const SequenceSpan& span : s.mix) tokens = std::max(tokens, span.tokens);
+    if (tokens != w.prefill_tokens) {
+      throw LineError{s.mixed() ? "step.mix" : "step.tokens",
+                      std::to_string(tokens) +
                           " differs from the header's prefill=" + std::to_string(w.prefill_tokens)};
     }
     saw_prefill_ = true;

@@ -48,7 +48,7 @@ std::string HeaderText(const TraceHeader& header) {
                     "' cannot be written (empty, control characters or edge spaces)");
   }
   const WorkloadConfig& w = header.workload;
-  std::string text = std::string(kTraceMagic) + " " + std::to_string(kTraceVersion) + "\n";
+  std::string text = std::string(kTraceMagic) + " " + std::to_string(header.version) + "\n";
   text += std::string(kWriterComment) + "\n";
   text += "model " + header.model + "\n";
   text += "workload";
@@ -59,17 +59,32 @@ std::string HeaderText(const TraceHeader& header) {
   return text + "\n";
 }
 
+// "T@C,T@C,...": each sequence's new tokens and context.
+std::string MixText(const std::vector<SequenceSpan>& mix) {
+  std::string text;
+  for (const SequenceSpan& s : mix) {
+    if (!text.empty()) text += ',';
+    text += std::to_string(s.tokens) + "@" + std::to_string(s.context);
+  }
+  return text;
+}
+
 std::string StepLine(const TraceStep& step) {
   std::string line = "step";
   AddField(line, "phase", PhaseName(step.phase));
   AddField(line, "index", step.step);
+  if (step.mixed()) {
+    AddField(line, "batch", step.batch);
+    AddField(line, "mix", MixText(step.mix));
+    return line + "\n";
+  }
   AddField(line, "tokens", step.tokens);
   AddField(line, "batch", step.batch);
   AddField(line, "context", step.context);
   return line + "\n";
 }
 
-std::string OpLine(const TraceOp& op) {
+std::string OpLine(const TraceOp& op, int version) {
   if (!IsPlainToken(op.name)) {
     throw Error(ExitCode::kInternal, "trace writer: op name '" + op.name +
                                          "' cannot be written (empty, spaces, '=' or '#')");
@@ -89,6 +104,7 @@ std::string OpLine(const TraceOp& op) {
   AddField(line, "head_dim", op.head_dim);
   AddField(line, "context", op.context);
   AddField(line, "causal", op.causal ? "true" : "false");
+  if (version >= kTraceVersionMixed) AddField(line, "sequences", op.sequences);
   AddField(line, "act_bits", op.act_bits);
   AddField(line, "kv_bits", op.kv_bits);
   AddField(line, "zero_fraction", FormatTraceDouble(op.zero_fraction));
@@ -112,18 +128,25 @@ void CheckOpInStep(const TraceOp& op, const TraceStep* step) {
 }  // namespace
 
 void WriteTrace(TraceSource& source, std::ostream& out) {
+  const int version = source.header().version;
+  if (version != kTraceVersion && version != kTraceVersionMixed) {
+    throw Error(ExitCode::kInternal, "trace writer: unknown version " + std::to_string(version));
+  }
   out << HeaderText(source.header());
   TraceRecord record;
   TraceStep current;
   bool in_step = false;
   while (source.next(record)) {
     if (record.is_step) {
+      if (record.step.mixed() && version < kTraceVersionMixed) {
+        throw Error(ExitCode::kInternal, "trace writer: a mixed step needs trace version 2");
+      }
       current = record.step;
       in_step = true;
       out << StepLine(record.step);
     } else {
       CheckOpInStep(record.op, in_step ? &current : nullptr);
-      out << OpLine(record.op);
+      out << OpLine(record.op, version);
     }
   }
   out << "end\n";

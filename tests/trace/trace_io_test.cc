@@ -130,6 +130,47 @@ TEST_F(TraceIo, ReaderGivesBackTheBuilderRecords) {
   EXPECT_EQ(records, 4 * (1 + 1 + 18 * 2 + 3));  // 4 steps of step line + ops
 }
 
+// Trace format version 2: one mixed step (serving with continuous
+// batching). Sequences of equal new tokens and context share one group of
+// attention ops; the projections see every new token.
+std::vector<SequenceSpan> Mix() { return {{9, 0}, {1, 40}, {1, 40}, {1, 77}}; }
+
+TEST_F(TraceIo, MixedStepWriteReadWriteIsByteIdentical) {
+  auto built = BuildMixedStepTrace(SmallModel(), Phase::kPrefill, Mix());
+  const std::string first = WriteToString(*built);
+  EXPECT_EQ(first.substr(0, 16), "tritsim-trace 2\n");
+  EXPECT_NE(first.find("step phase=prefill index=0 batch=4 mix=9@0,1@40,1@40,1@77\n"),
+            std::string::npos);
+  EXPECT_EQ(RewriteFile(first), first);
+}
+
+TEST_F(TraceIo, MixedStepGroupsAttentionByTokensAndContext) {
+  auto built = BuildMixedStepTrace(SmallModel(), Phase::kPrefill, Mix());
+  TraceRecord r;
+  ASSERT_TRUE(built->next(r));
+  ASSERT_TRUE(r.is_step);
+  EXPECT_EQ(r.step.new_tokens(), 12);
+  EXPECT_EQ(built->header().workload.prefill_tokens, 9);  // the longest chunk
+  EXPECT_EQ(built->header().workload.batch, 4);
+  std::vector<TraceOp> scores;
+  while (built->next(r)) {
+    if (r.op.layer != 0) continue;
+    if (r.op.kind == OpKind::kGemm) {
+      EXPECT_EQ(r.op.m, 12) << r.op.name;
+    }
+    if (r.op.kind == OpKind::kAttnScores) scores.push_back(r.op);
+  }
+  ASSERT_EQ(scores.size(), 3u);  // 9@0, 2 x 1@40, 1@77
+  EXPECT_EQ(scores[0].m, 9);
+  EXPECT_EQ(scores[0].context, 9);
+  EXPECT_TRUE(scores[0].causal);
+  EXPECT_EQ(scores[1].sequences, 2);
+  EXPECT_EQ(scores[1].m, 2);
+  EXPECT_EQ(scores[1].context, 41);
+  EXPECT_FALSE(scores[1].causal);
+  EXPECT_EQ(scores[2].context, 78);
+}
+
 TEST_F(TraceIo, LargestWorkloadsReadBack) {
   // The reader's caps must admit every trace the builder writes for a
   // workload within ValidateWorkload's limits (prompt and decode 2^20,
@@ -284,7 +325,7 @@ const BadTrace kBadTraces[] = {
     {"op_before_step.trace", 5, "op before any step line"},
     {"decode_out_of_order.trace", 6, "decode step 2 out of order, expected 1"},
     {"bad_magic.trace", 1, "not a tritsim trace"},
-    {"unsupported_version.trace", 1, "unsupported trace version 2, supported 1"},
+    {"unsupported_version.trace", 1, "unsupported trace version 3, supported 1 | 2"},
     {"garbage_bytes.trace", 5, "NUL byte at column 3"},
     {"compressed_file.trace", 1, "control byte 31 at column 1"},
     {"invalid_utf8.trace", 4, "invalid UTF-8 at column 6"},
@@ -308,6 +349,11 @@ const BadTrace kBadTraces[] = {
     {"header_cut.trace", 2, "file ends inside the header"},
     {"step_before_workload.trace", 3, "workload: missing header line before 'step'"},
     {"model_twice.trace", 3, "model: given twice"},
+    {"mix_count_mismatch.trace", 4, "step.mix: has 2 entries, batch=3"},
+    {"mix_and_tokens.trace", 4, "step.mix: a mixed step gives mix instead of tokens and context"},
+    {"mix_bad_entry.trace", 4, "step.mix: '0@20' is not TOKENS@CONTEXT"},
+    {"sequences_in_uniform_step.trace", 5, "op.sequences: only ops of a mixed step"},
+    {"v2_op_without_sequences.trace", 5, "op.sequences: missing field"},
 };
 
 // Opens and drains `path`; returns the error text, or "" if it read cleanly.
