@@ -3,6 +3,7 @@
 #include <boost/program_options.hpp>
 #include <charconv>
 #include <filesystem>
+#include <iostream>
 #include <limits>
 
 #include "common/error.h"
@@ -111,6 +112,17 @@ void SplitOverrides(const std::vector<std::string>& raw, ConfigOverrides& arch,
                        "'");
     }
   }
+}
+
+bool WantsHelp(const std::vector<std::string>& args) {
+  for (const std::string& a : args) {
+    if (a == "--help" || a == "-h") return true;
+  }
+  return false;
+}
+
+void PrintHelp(const std::string& usage, const po::options_description& desc) {
+  std::cout << usage << "\n\n" << desc << "\n";
 }
 
 void AddInputOptions(po::options_description& desc, InputOptions& in, bool with_arch) {

@@ -71,6 +71,11 @@ void ParseCommandLine(const std::string& command, const std::vector<std::string>
                       boost::program_options::variables_map& vm, const char* positional = nullptr,
                       int max_positional = 1);
 
+// True when `args` holds --help or -h (anywhere: help wins over errors).
+bool WantsHelp(const std::vector<std::string>& args);
+// Prints "USAGE\n\nOPTIONS\n" to stdout.
+void PrintHelp(const std::string& usage, const boost::program_options::options_description& desc);
+
 // The command line as recorded in provenance.command: "tritsim", the
 // subcommand, then `args` as given.
 std::vector<std::string> RecordedCommand(const std::string& command,

@@ -32,17 +32,6 @@ namespace po = boost::program_options;
 namespace tritsim {
 namespace {
 
-bool WantsHelp(const Args& args) {
-  for (const std::string& a : args) {
-    if (a == "--help" || a == "-h") return true;
-  }
-  return false;
-}
-
-void PrintHelp(const std::string& usage, const po::options_description& desc) {
-  std::cout << usage << "\n\n" << desc << "\n";
-}
-
 std::string JsonText(const nlohmann::ordered_json& j) { return j.dump(2) + "\n"; }
 
 // One line on stderr when the accumulator can wrap on the model's GEMMs.
@@ -66,6 +55,7 @@ std::string MainUsage() {
          "  sweep     run many design points (see tritsim sweep --help)\n"
          "  compare   run a study's named variants side by side against a reference\n"
          "  diff      compare two run reports: totals, phases, op classes, config\n"
+         "  serve     serve a stream of requests: latency, throughput, SLOs, capacity\n"
          "  datapath  check the bit-exact datapath (packing, adder trees, accumulator)\n"
          "\n"
          "Results are model estimates for architecture exploration, not sign-off numbers.\n";
@@ -112,15 +102,6 @@ std::vector<SequenceSpan> MixOption(const std::string& text) {
   const std::string error = ParseMixText(text, mix);
   if (!error.empty()) throw UsageError("--mix: " + error);
   return mix;
-}
-
-// A mixed step is a prefill when any sequence brings more than one token or
-// starts an empty cache; a decode step otherwise.
-Phase PhaseOfMix(const std::vector<SequenceSpan>& mix) {
-  for (const SequenceSpan& s : mix) {
-    if (s.tokens > 1 || s.context == 0) return Phase::kPrefill;
-  }
-  return Phase::kDecode;
 }
 
 int TraceCommand(const Args& args) {

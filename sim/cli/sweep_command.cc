@@ -288,11 +288,6 @@ void CheckSweepOutputs(const SweepArgs& a) {
   }
 }
 
-bool WantsHelp(const Args& args) {
-  return std::find(args.begin(), args.end(), "--help") != args.end() ||
-         std::find(args.begin(), args.end(), "-h") != args.end();
-}
-
 int Merge(const Args& args) {
   SweepArgs a;
   po::options_description desc("sweep merge options");

@@ -284,6 +284,13 @@ std::unique_ptr<TraceSource> BuildTrace(const ModelConfig& model, const Workload
   return std::make_unique<BuiltTrace>(model, workload);
 }
 
+Phase PhaseOfMix(const std::vector<SequenceSpan>& mix) {
+  for (const SequenceSpan& s : mix) {
+    if (s.tokens > 1 || s.context == 0) return Phase::kPrefill;
+  }
+  return Phase::kDecode;
+}
+
 std::unique_ptr<TraceSource> BuildMixedStepTrace(const ModelConfig& model, Phase phase,
                                                  const std::vector<SequenceSpan>& mix) {
   return std::make_unique<BuiltTrace>(model, phase, mix);

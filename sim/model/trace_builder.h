@@ -20,6 +20,10 @@ std::unique_ptr<TraceSource> BuildTrace(const ModelConfig& model, const Workload
 // and the KV append run per group of sequences with equal new tokens and
 // context, each over its own caches. REQUIRES: model validated; every
 // span's tokens >= 1 and context >= 0.
+// The builder's phase of a mixed step: prefill when any sequence brings more
+// than one token or starts an empty cache, else decode.
+Phase PhaseOfMix(const std::vector<SequenceSpan>& mix);
+
 std::unique_ptr<TraceSource> BuildMixedStepTrace(const ModelConfig& model, Phase phase,
                                                  const std::vector<SequenceSpan>& mix);
 

@@ -91,12 +91,19 @@ class Server {
     const bool any_prefill = std::any_of(running_.begin(), running_.end(),
                                          [&](const Running& s) { return Prefilling(s); });
     if (policy_.schedule == Schedule::kPrefillFirst) {
+      int64_t budget = policy_.prefill_tokens;
+      bool first = true;
       for (Running& s : running_) {
-        if (any_prefill) {
-          if (Prefilling(s)) s.step_tokens = RequestOf(s).prompt_tokens - s.prefilled;
-        } else {
+        if (!any_prefill) {
           s.step_tokens = 1;
+          continue;
         }
+        if (!Prefilling(s)) continue;
+        const int64_t prompt = RequestOf(s).prompt_tokens - s.prefilled;
+        if (!first && prompt > budget) break;  // admission order: no overtaking
+        s.step_tokens = prompt;
+        budget -= prompt;
+        first = false;
       }
       return;
     }
@@ -121,7 +128,7 @@ class Server {
     for (const Running& s : running_) {
       if (s.step_tokens == 0) continue;
       const int64_t context = Prefilling(s) ? s.prefilled : s.prefilled + s.generated - 1;
-      shape.sequences.push_back(SequenceWork{s.step_tokens, context});
+      shape.sequences.push_back(SequenceSpan{s.step_tokens, context});
     }
     const StepCost c = cost_.Cost(shape);
     const double end = t + c.seconds;

@@ -5,7 +5,9 @@
 //
 // Two policies decide what a step runs:
 //  - prefill-first: a step with sequences still to prefill runs their whole
-//    prompts alone; otherwise it decodes one token of every running sequence;
+//    prompts alone, as many as fit a token budget in admission order (one
+//    longer prompt runs by itself); otherwise it decodes one token of every
+//    running sequence;
 //  - chunked: every decoding sequence gets its token, then prompt chunks of
 //    the admitted sequences fill the rest of a token budget (Agrawal et al.,
 //    2024), so prefills share steps with decodes.
@@ -19,25 +21,17 @@
 #include <vector>
 
 #include "serve/request_stream.h"
+#include "trace/trace_op.h"
 
 namespace tritsim {
-
-// One sequence's share of a step.
-struct SequenceWork {
-  int64_t new_tokens = 1;  // a prompt chunk, or 1 for a decode
-  int64_t context = 0;     // tokens in its KV cache before this step
-  bool operator==(const SequenceWork& o) const {
-    return new_tokens == o.new_tokens && context == o.context;
-  }
-};
 
 // What one step computes: the projections see all tokens as one GEMM,
 // attention runs per sequence over its own cache.
 struct StepShape {
-  std::vector<SequenceWork> sequences;
+  std::vector<SequenceSpan> sequences;  // each sequence's new tokens and context
   int64_t tokens() const {
     int64_t n = 0;
-    for (const auto& s : sequences) n += s.new_tokens;
+    for (const auto& s : sequences) n += s.tokens;
     return n;
   }
 };
@@ -63,7 +57,8 @@ const char* ScheduleName(Schedule s);
 struct ServePolicy {
   int64_t max_batch = 16;  // running sequences at most
   Schedule schedule = Schedule::kPrefillFirst;
-  int64_t chunk_tokens = 512;  // chunked: tokens per step (decodes first)
+  int64_t chunk_tokens = 512;     // chunked: tokens per step (decodes first)
+  int64_t prefill_tokens = 2048;  // prefill-first: prompt tokens per step (one longer runs alone)
   double kv_capacity_bytes = 0;
   double kv_bytes_per_token = 0;  // over all layers, K and V
 };

@@ -22,7 +22,7 @@ class FixedCost : public StepCostModel {
   FixedCost(double prefill, double decode) : prefill_(prefill), decode_(decode) {}
   StepCost Cost(const StepShape& step) override {
     bool prompt = false;
-    for (const auto& s : step.sequences) prompt |= s.new_tokens > 1 || s.context == 0;
+    for (const auto& s : step.sequences) prompt |= s.tokens > 1 || s.context == 0;
     ++steps;
     return StepCost{prompt ? prefill_ : decode_, 1.0};
   }
@@ -225,10 +225,10 @@ TEST(ServeSchedule, PrefillFirstRunsAdmittedPromptsAloneThenDecodesEverySequence
   p.max_batch = 4;
   Serve(requests, p, cost);
   ASSERT_EQ(cost.shapes.size(), 3u);
-  EXPECT_EQ(cost.shapes[0].sequences, (std::vector<SequenceWork>{{5, 0}, {7, 0}}));
+  EXPECT_EQ(cost.shapes[0].sequences, (std::vector<SequenceSpan>{{5, 0}, {7, 0}}));
   // Decode: the first output token goes in at context = prompt.
-  EXPECT_EQ(cost.shapes[1].sequences, (std::vector<SequenceWork>{{1, 5}, {1, 7}}));
-  EXPECT_EQ(cost.shapes[2].sequences, (std::vector<SequenceWork>{{1, 6}}));
+  EXPECT_EQ(cost.shapes[1].sequences, (std::vector<SequenceSpan>{{1, 5}, {1, 7}}));
+  EXPECT_EQ(cost.shapes[2].sequences, (std::vector<SequenceSpan>{{1, 6}}));
 }
 
 TEST(ServeRequests, GeneratedStreamsAreReproducibleWithPoissonGaps) {
