@@ -21,6 +21,9 @@ namespace {
 
 // Blocks cut for layer extrapolation (see the header).
 constexpr int64_t kFewLayers = 2;
+// Features beside the token grid: keys streamed, score pairs, attention
+// groups (each group's ops cost a fixed start-up and drain).
+constexpr size_t kShapeFeatures = 3;
 
 // Points where g(T) is a parameter: 1, 2, 4, ... up to `most`, and `most`.
 std::vector<int64_t> TokenGrid(int64_t most) {
@@ -51,6 +54,16 @@ std::vector<StepShape> CalibrationShapes(const CalibrationRange& r,
     for (int64_t c : {std::max<int64_t>(1, r.min_context), mid, r.max_context}) {
       shapes.push_back(Alike(b, 1, c));
     }
+  }
+  // Decodes at spread contexts: one attention group per sequence.
+  for (int64_t b : batches) {
+    if (b < 2) continue;
+    StepShape spread;
+    for (int64_t i = 0; i < b; ++i) {
+      const int64_t lo = std::max<int64_t>(1, r.min_context);
+      spread.sequences.push_back(SequenceSpan{1, lo + (r.max_context - lo) * i / (b - 1)});
+    }
+    shapes.push_back(spread);
   }
   for (int64_t k : {2, 4}) {
     const int64_t prompt = std::max<int64_t>(1, std::min(r.max_step_tokens / k, r.max_context));
@@ -118,7 +131,7 @@ EngineStepCost::EngineStepCost(const ModelConfig& model, const EngineRunner& run
     : model_(model), runner_(runner) {}
 
 std::vector<double> EngineStepCost::Features(const StepShape& step) const {
-  std::vector<double> f(grid_.size() + 2, 0.0);
+  std::vector<double> f(grid_.size() + kShapeFeatures, 0.0);
   const double t = double(step.tokens());
   size_t hi = 1;
   while (hi + 1 < grid_.size() && double(grid_[hi]) < t) ++hi;
@@ -131,13 +144,16 @@ std::vector<double> EngineStepCost::Features(const StepShape& step) const {
     f[hi] = w;
   }
   double keys = 0, pairs = 0;
+  std::vector<SequenceSpan> groups;
   for (const SequenceSpan& s : step.sequences) {
     const double n = double(s.tokens), c = double(s.context);
     keys += c + n;
     pairs += n * c + n * (n + 1) / 2;
+    if (std::find(groups.begin(), groups.end(), s) == groups.end()) groups.push_back(s);
   }
   f[grid_.size()] = keys;
   f[grid_.size() + 1] = pairs;
+  f[grid_.size() + 2] = double(groups.size());
   return f;
 }
 

@@ -10,11 +10,13 @@
 //     to 2 and 3 blocks (the steady-state block and the fixed part: embedding,
 //     head, pipeline fill).
 //  2. A regression over step shapes, weighted for relative error:
-//       cost = g(T) + a x (keys streamed) + b x (score pairs)
+//       cost = g(T) + a x (keys streamed) + b x (score pairs) + c x (groups)
 //     g piecewise linear in the step's new tokens T on a power-of-two grid
 //     (the projections: weight streaming, then compute past the ridge), a the
 //     per-key cost of streaming each sequence's cache, b the per-pair cost of
-//     the attention arithmetic. Seconds and joules are fitted alike.
+//     the attention arithmetic, c the fixed cost of one group of attention
+//     ops (sequences of equal tokens and context share one). Seconds and
+//     joules are fitted alike.
 // The error is measured, not assumed: Validate() simulates actual steps of
 // the run in full detail and reports how far the estimates were.
 #pragma once
