@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdio>
 #include <sstream>
+#include <vector>
 
 #include "report/gnuplot.h"
 #include "report/plot_style.h"
@@ -41,6 +42,19 @@ std::string Colours(size_t n) {
   return out;
 }
 
+// Ratios spanning a factor of 10 or more (8.8x faster, 0.12x the memory)
+// read better on a log axis, where 2x and 0.5x lie equally far from 1.
+std::string LogScaleForRatios(const StudyTable& t) {
+  std::vector<double> ratios;
+  for (const StudyRow& r : t.rows) {
+    for (double v : r.ratios) {
+      if (std::isfinite(v) && v > 0) ratios.push_back(v);
+    }
+  }
+  if (ScaleFor(ratios) == AxisScale::kLinear) return "";
+  return "set logscale y 10\nset yrange [*:*]\nset format y \"%gx\"\n";
+}
+
 // Rows: figures; columns: variants' ratios.
 void RatioPlot(const std::string& dir, const StudyTable& t) {
   std::ostringstream data;
@@ -53,7 +67,7 @@ void RatioPlot(const std::string& dir, const StudyTable& t) {
     data << "\n";
   }
   std::ostringstream gp;
-  gp << Header("ratios", "study " + t.study + ": ratio to " + t.reference)
+  gp << Header("ratios", "study " + t.study + ": ratio to " + t.reference) << LogScaleForRatios(t)
      << "set style histogram clustered gap 1\n"
      << "set ylabel \"ratio to " << t.reference << "\"\n"
      << "set xtics rotate by -30\n"
