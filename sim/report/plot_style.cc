@@ -234,7 +234,7 @@ std::string GnuplotText(const std::string& text) {
     // Letters, digits, a few punctuation marks, and UTF-8 bytes (the
     // scripts set `encoding utf8`, so "mm²" stays itself).
     const bool safe = std::isalnum(u) || u >= 0x80 ||
-                      std::string(" _.-/+():;,=%<>*").find(c) != std::string::npos;
+                      std::string(" _.-/+():;,=%<>*'").find(c) != std::string::npos;
     out += safe ? c : '_';
   }
   return out;

@@ -160,6 +160,16 @@ AxisRanges RooflineRanges(const RunResult& run, const std::vector<OpClassPoint>&
   return r;
 }
 
+// The angle on screen of a line of slope 1 in log-log data space, for a
+// panel whose plotting area is about kPlotAreaWidthPx x kPlotAreaHeightPx.
+double SlopeDegrees(const AxisRanges& r) {
+  constexpr double kPlotAreaWidthPx = 620, kPlotAreaHeightPx = 440;
+  constexpr double kDegreesPerRadian = 57.29577951308232;
+  const double px_per_decade_x = kPlotAreaWidthPx / std::log10(r.x_max / r.x_min);
+  const double px_per_decade_y = kPlotAreaHeightPx / std::log10(r.y_max / r.y_min);
+  return std::atan2(px_per_decade_y, px_per_decade_x) * kDegreesPerRadian;
+}
+
 // The ceiling lines (no key entry) and a label on each: flat roofs at the
 // right end, slopes where they enter the plot from the left or bottom. A
 // slope stops at the tree array's roof, above which no op can go.
@@ -181,9 +191,11 @@ std::string CeilingLines(const RunResult& run, const AxisRanges& r, int first_la
       lines << ", \\\n     " << PlotNumber(c.value) << " notitle with lines lw 2 "
             << GnuplotLineStyle(st);
     } else {
-      const double x_enter = std::max(r.x_min * 1.15, r.y_min * 1.6 / c.value);
+      // Written along the line, just above it, from where it enters the plot.
+      const double x_enter = std::max(r.x_min * 1.3, r.y_min * 2.0 / c.value);
       labels << "set label " << label++ << " " << Quoted(text) << " at " << PlotNumber(x_enter)
-             << ", " << PlotNumber(c.value * x_enter) << " left offset 0.6,-0.2 textcolor rgb \""
+             << ", " << PlotNumber(c.value * x_enter) << " left rotate by "
+             << fmt::format("{:.0f}", SlopeDegrees(r)) << " offset -0.6,0.9 textcolor rgb \""
              << st.colour << "\" front\n";
       lines << ", \\\n     (" << PlotNumber(c.value)
             << " * x <= " << PlotNumber(run.peak_ops_per_second) << " ? " << PlotNumber(c.value)

@@ -26,11 +26,11 @@ constexpr int kWidthPx = 1100;
 constexpr int kFrontTableChars = 58;  // right margin of the front plot, characters
 constexpr int kHeightPx = 600;
 
-// Text safe in a file name: as in a gnuplot string, '/' and '%' made '_'.
+// Text safe in a file name: as in a gnuplot string, with / % < > * ' made '_'.
 std::string FileNamePart(const std::string& text) {
   std::string out = GnuplotText(text);
   for (char& c : out) {
-    if (c == '/' || c == '%' || c == '<' || c == '>' || c == '*') c = '_';
+    if (std::string("/%<>*'").find(c) != std::string::npos) c = '_';
   }
   return out;
 }
