@@ -229,6 +229,30 @@ TEST_F(Plots, StallsDataHasOneRowPerPhaseInPercentAndCycles) {
   EXPECT_EQ(rows[1].rfind("\"decode\" 14.2857 85.7143 0 0 0", 0), 0u) << rows[1];
 }
 
+// Every ceiling that applies is its own labelled line, in both phase panels.
+TEST_F(Plots, RooflineDrawsEveryCeilingInEachPhasePanel) {
+  RunResult run = SmallRun();
+  run.layers[0].op.phase = Phase::kPrefill;
+  run.vector_peak_ops_per_second = 256e9;
+  run.concurrency_bytes_per_second = 12e9;  // below the 25.6 GB/s: drawn
+  run.decoder_bytes_per_second = 64e9;
+  WriteRunPlots(dir_.string(), run, SmallEnergy());
+  const std::string gp = ReadFile(dir_ / "roofline.gp");
+  EXPECT_NE(gp.find("set multiplot layout 1,2"), std::string::npos);
+  for (const std::string label :
+       {"\"tree array: 8.19 Tops/s\"", "\"vector unit: 256 Gops/s\"",
+        "\"DRAM bandwidth: 25.6 GB/s\"", "\"request concurrency (Little's law): 12 GB/s\"",
+        "\"trit decoder (if every byte is a weight): 64 GB/s\""}) {
+    size_t count = 0;
+    for (size_t at = gp.find(label); at != std::string::npos; at = gp.find(label, at + 1)) ++count;
+    EXPECT_EQ(count, 2u) << label << " in each of the two panels";
+  }
+  // Concurrency above DRAM bandwidth is no ceiling: not drawn.
+  run.concurrency_bytes_per_second = 30e9;
+  WriteRunPlots(dir_.string(), run, SmallEnergy());
+  EXPECT_EQ(ReadFile(dir_ / "roofline.gp").find("request concurrency"), std::string::npos);
+}
+
 // A class's marker comes from a fixed table, not from the order in which
 // classes appear, so two runs draw "gemm ffn" alike.
 TEST(PlotStyle, OpClassMarkersAreFixedAndDistinct) {
