@@ -7,7 +7,7 @@ namespace tritsim_bench {
 // Elaborates one module whose SC_THREAD does `waits` times wait(1, SC_NS),
 // runs it, and returns the wall nanoseconds per wait (sc_start only, not
 // elaboration). SystemC elaborates once per process: call at most once per
-// process (the driver runs it in a forked child).
+// process (the driver runs it in a child process of its own binary).
 // REQUIRES: waits > 0.
 double TimedWaitNs(long waits);
 

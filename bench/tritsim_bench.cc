@@ -5,8 +5,9 @@
 // Each case runs the real `tritsim run` binary as a child process, `repeat`
 // times; wall time is the minimum over the repeats (the least disturbed by
 // other load), peak resident memory the maximum. Simulated cycles and DRAM
-// requests come from the run's JSON report. The timed-wait loop runs in
-// forked children, since SystemC elaborates once per process.
+// requests come from the run's JSON report. The timed-wait loop runs in a
+// child process of this binary (--child-value), since SystemC elaborates
+// once per process.
 //
 // Output: a Markdown report on stdout (scripts/bench writes it to
 // bench/results.md); progress on stderr. Exit 0 when every run succeeded
@@ -24,6 +25,7 @@
 #include <string>
 #include <vector>
 
+#include <fmt/core.h>
 #include <nlohmann/json.hpp>
 #include <systemc>  // declares sc_main, which libsystemc's main() calls
 
@@ -36,6 +38,7 @@ namespace {
 // libsystemc's main() prints its banner before sc_main() unless this is set.
 const bool kQuietBanner = ::setenv("SYSTEMC_DISABLE_COPYRIGHT_MESSAGE", "1", 0) == 0;
 
+constexpr const char* kTimedWaitMode = "timed-wait-ns";  // RunSelfForValue's mode
 constexpr int kDefaultRepeat = 3;
 constexpr long kDefaultWaits = 10'000'000;  // about 1.5 s at ~150 ns per wait
 constexpr double kNsPerSecond = 1e9;
@@ -155,7 +158,7 @@ Options ParseOptions(int argc, char** argv) {
 // `best_ns` (0: none yet).
 void MeasureTimedWait(const Options& o, double& best_ns) {
   for (int r = 0; r < o.repeat; ++r) {
-    const double ns = RunForkedForValue(TimedWaitNs, o.waits);
+    const double ns = RunSelfForValue(kTimedWaitMode, o.waits);
     best_ns = best_ns == 0.0 ? ns : std::min(best_ns, ns);
   }
 }
@@ -204,11 +207,7 @@ CaseFigures MeasureCase(const Options& o, const BenchCase& c) {
   return f;
 }
 
-std::string Fixed(double value, int digits) {
-  char text[64];
-  std::snprintf(text, sizeof text, "%.*f", digits, value);
-  return text;
-}
+std::string Fixed(double value, int digits) { return fmt::format("{:.{}f}", value, digits); }
 
 double NsPerRequest(const CaseFigures& f) {
   return f.dram_requests ? f.wall_seconds * kNsPerSecond / double(f.dram_requests) : 0.0;
@@ -300,6 +299,13 @@ int Main(int argc, char** argv) {
 
 int sc_main(int argc, char** argv) {
   try {
+    std::string mode;
+    long argument = 0;
+    if (tritsim_bench::IsChildValueInvocation(argc, argv, mode, argument)) {
+      if (mode != tritsim_bench::kTimedWaitMode) return 2;
+      tritsim_bench::PrintChildValue(tritsim_bench::TimedWaitNs(argument));
+      return 0;
+    }
     return tritsim_bench::Main(argc, argv);
   } catch (const std::exception& e) {
     std::cerr << "tritsim_bench: " << e.what() << "\n";

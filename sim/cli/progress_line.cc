@@ -3,6 +3,7 @@
 
 #include <unistd.h>
 
+#include <fmt/core.h>
 #include <algorithm>
 #include <cstdio>
 #include <string>
@@ -16,22 +17,12 @@ namespace {
 constexpr double kMicro = 1e-6, kMilli = 1e-3;
 
 std::string SimulatedTime(double s) {
-  char buf[32];
-  if (s < kMilli) {
-    std::snprintf(buf, sizeof buf, "%.3g us", s / kMicro);
-  } else if (s < 1.0) {
-    std::snprintf(buf, sizeof buf, "%.3g ms", s / kMilli);
-  } else {
-    std::snprintf(buf, sizeof buf, "%.3g s", s);
-  }
-  return buf;
+  if (s < kMilli) return fmt::format("{:.3g} us", s / kMicro);
+  if (s < 1.0) return fmt::format("{:.3g} ms", s / kMilli);
+  return fmt::format("{:.3g} s", s);
 }
 
-std::string WallTime(double s) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, s < 100 ? "%.1f s" : "%.0f s", s);
-  return buf;
-}
+std::string WallTime(double s) { return fmt::format(s < 100 ? "{:.1f} s" : "{:.0f} s", s); }
 
 }  // namespace
 

@@ -3,8 +3,8 @@
 // rows. Stable across platforms and versions: a contract of the sweep CSV.
 #pragma once
 
+#include <fmt/core.h>
 #include <cstdint>
-#include <cstdio>
 #include <string>
 #include <string_view>
 
@@ -23,10 +23,6 @@ inline uint64_t Fnv1a64(std::string_view bytes, uint64_t h = kFnv1aOffset) {
 }
 
 // The hash as 16 lower-case hex digits.
-inline std::string Hex64(uint64_t h) {
-  char buf[17];
-  std::snprintf(buf, sizeof buf, "%016llx", static_cast<unsigned long long>(h));
-  return buf;
-}
+inline std::string Hex64(uint64_t h) { return fmt::format("{:016x}", h); }
 
 }  // namespace tritsim

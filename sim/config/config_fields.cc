@@ -4,6 +4,7 @@
 // far inside 64 bits.
 #include "config/config_fields.h"
 
+#include <fmt/core.h>
 #include <cstdio>
 #include <type_traits>
 
@@ -461,11 +462,7 @@ const std::vector<ArchField>& ArchFields() {
   return kFields;
 }
 
-std::string FormatReal(double v) {
-  char text[32];
-  std::snprintf(text, sizeof text, "%.10g", v);
-  return text;
-}
+std::string FormatReal(double v) { return fmt::format("{:.10g}", v); }
 
 std::string AllowedText(FieldKind kind, const IntRule& int_rule, const RealRule& real_rule,
                         const std::vector<int64_t>& int_choices,

@@ -4,6 +4,7 @@
 // docs/config-reference.md for the same in prose.
 #include "config/config_loader.h"
 
+#include <fmt/core.h>
 #include <algorithm>
 #include <cstdio>
 #include <string>
@@ -279,10 +280,8 @@ void ValidateWorkload(const WorkloadConfig& workload, const ModelConfig& model) 
   }
   const long double ops = EstimateRunOps(workload, model);
   if (ops > kMaxRunOps) {
-    char text[64];
-    std::snprintf(text, sizeof text, "%.3Lg", ops);
-    throw UsageError(std::string("--prefill/--decode/--context/--batch: this run needs about ") +
-                     text + " operations on " + model.name +
+    throw UsageError("--prefill/--decode/--context/--batch: this run needs about " +
+                     fmt::format("{:.3g}", ops) + " operations on " + model.name +
                      ", beyond the 1e18 that the simulator's 64-bit counters allow; "
                      "use fewer tokens or a smaller batch");
   }

@@ -1,6 +1,7 @@
 // Sweep file reader. See sweep_file.h.
 #include "config/sweep_file.h"
 
+#include <fmt/core.h>
 #include <algorithm>
 #include <charconv>
 #include <cmath>
@@ -45,9 +46,7 @@ int LineOf(const YAML::Node& node) {
 // Shortest text that reads back as `v` (integers without a fraction).
 std::string FormatNumber(double v) {
   if (std::floor(v) == v && std::fabs(v) < 1e15) return std::to_string(int64_t(v));
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.12g", v);  // 12 digits: hides range rounding (0.1 * 3)
-  return buf;
+  return fmt::format("{:.12g}", v);  // 12 digits: hides range rounding (0.1 * 3)
 }
 
 bool ParseNumber(const std::string& text, double& out) {

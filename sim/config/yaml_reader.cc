@@ -13,6 +13,7 @@
 #include <sstream>
 #include <system_error>
 
+#include <fmt/core.h>
 #include <yaml-cpp/depthguard.h>
 #include <yaml-cpp/eventhandler.h>
 
@@ -75,9 +76,7 @@ void CheckText(const std::string& text, const FailFn& fail) {
     const unsigned char c = static_cast<unsigned char>(text[i]);
     if (c == '\n') ++line;
     if (c < 0x20 && c != '\n' && c != '\r' && c != '\t') {
-      char hex[8];
-      std::snprintf(hex, sizeof hex, "0x%02x", c);
-      throw fail(line, std::string("not a text file: control byte ") + hex + " at offset " +
+      throw fail(line, fmt::format("not a text file: control byte 0x{:02x}", c) + " at offset " +
                            std::to_string(i));
     }
     if (c == 0x7f) throw fail(line, "not a text file: DEL byte at offset " + std::to_string(i));

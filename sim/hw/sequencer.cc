@@ -128,10 +128,15 @@ void Sequencer::AlignToCycle() {
   if (rem) wait(sc_time::from_value(period_ps_ - rem));
 }
 
-void Sequencer::Charge(uint64_t& bucket) {
+void Sequencer::Charge(uint64_t StallBreakdown::*cause) {
   const uint64_t now = NowPs();
-  bucket += (now - mark_ps_) / period_ps_;
+  AddStall(cause, (now - mark_ps_) / period_ps_);
   mark_ps_ = now;
+}
+
+void Sequencer::AddStall(uint64_t StallBreakdown::*cause, uint64_t cycles) {
+  stalls_.*cause += cycles;
+  phase_stalls_[int(current_phase_)].*cause += cycles;
 }
 
 void Sequencer::ComputeThread() {
@@ -141,7 +146,8 @@ void Sequencer::ComputeThread() {
       while (loaded_.empty() && !trace_done_) wait(item_loaded_);
       if (loaded_.empty()) break;
       AlignToCycle();
-      Charge(stalls_.dram_wait);
+      current_phase_ = ops_in_flight_.front().phase;  // the op of loaded_.front()
+      Charge(&StallBreakdown::dram_wait);
       const WorkItem item = loaded_.front();
       loaded_.pop_front();
       RunItem(item);
@@ -149,7 +155,7 @@ void Sequencer::ComputeThread() {
     compute_state_ = "outstanding stores";
     dma_.WaitStoresDone();
     AlignToCycle();
-    Charge(stalls_.idle);
+    Charge(&StallBreakdown::idle);
     end_ps_ = NowPs();
     finished_ = true;
     compute_state_ = "done";
@@ -167,10 +173,10 @@ void Sequencer::RunItem(const WorkItem& item) {
   const TileRun run = on_array ? tree_array_.Execute(item) : vector_unit_.Execute(item);
   const uint64_t now = NowPs();
   if (on_array) {
-    stalls_.busy += run.cost.cycles;
-    stalls_.sram_conflict += run.conflict_cycles;
+    AddStall(&StallBreakdown::busy, run.cost.cycles);
+    AddStall(&StallBreakdown::sram_conflict, run.conflict_cycles);
   } else {
-    stalls_.vector_wait += run.cost.cycles + run.conflict_cycles;
+    AddStall(&StallBreakdown::vector_wait, run.cost.cycles + run.conflict_cycles);
   }
   mark_ps_ = now;
   if (StreamedBytes(item) > 0) {
@@ -212,7 +218,7 @@ void Sequencer::RetireOp(OpInFlight& op) {
   compute_state_ = "stores of the retiring op";
   dma_.WaitStoresDone();
   AlignToCycle();
-  Charge(stalls_.dram_wait);
+  Charge(&StallBreakdown::dram_wait);
   const uint64_t now = NowPs();
   OpResult& result = layers_[op.result_index];
   const uint64_t span_cycles = (now - op.span_start_ps + period_ps_ - 1) / period_ps_;
@@ -236,6 +242,7 @@ PhaseResult Sequencer::MakePhase(Phase phase, uint64_t cycles, uint64_t tokens) 
   p.cycles = cycles;
   p.tokens = tokens;
   p.demand = phase_demand_[int(phase)];
+  p.stalls = phase_stalls_[int(phase)];
   const ResourceBounds bounds = BoundsOf(p.demand, resource_rates_);
   p.bound_by = bounds.binding;
   p.bound_cycles = uint64_t(std::ceil(bounds.max_cycles() - 1e-9));

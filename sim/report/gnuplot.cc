@@ -1,15 +1,11 @@
 #include "report/gnuplot.h"
 
-#include <fcntl.h>
-#include <sys/wait.h>
-#include <unistd.h>
-
-#include <cerrno>
 #include <filesystem>
 #include <system_error>
 
 #include "common/atomic_file.h"
 #include "common/error.h"
+#include "common/subprocess.h"
 
 namespace tritsim {
 namespace {
@@ -20,15 +16,6 @@ constexpr size_t kMaxErrorChars = 300;  // gnuplot stderr quoted in an error mes
 
 Error PlotError(const std::string& dir, const std::string& what) {
   return Error(ExitCode::kBadInput, "--plots " + dir + ": " + what);
-}
-
-// Reads everything from `fd` until EOF.
-std::string ReadAll(int fd) {
-  std::string out;
-  char buf[4096];
-  ssize_t n;
-  while ((n = ::read(fd, buf, sizeof buf)) > 0) out.append(buf, static_cast<size_t>(n));
-  return out;
 }
 
 // gnuplot's stderr as one line: newlines joined with "; ", cut short.
@@ -46,51 +33,22 @@ std::string Condense(std::string text) {
   return out.empty() ? "no message" : out;
 }
 
-// Child side: working directory `dir`, stderr to `err_fd`, stdin and stdout
-// to /dev/null, then exec gnuplot. Only async-signal-safe calls.
-[[noreturn]] void ExecGnuplot(const char* dir, const char* outfile_arg, const char* script,
-                              int err_fd) {
-  const int null_fd = ::open("/dev/null", O_RDWR);
-  if (null_fd >= 0) {
-    ::dup2(null_fd, STDIN_FILENO);
-    ::dup2(null_fd, STDOUT_FILENO);
-  }
-  ::dup2(err_fd, STDERR_FILENO);
-  if (::chdir(dir) != 0) {
-    static const char kMsg[] = "cannot enter the plot directory\n";
-    (void)!::write(STDERR_FILENO, kMsg, sizeof kMsg - 1);
-    ::_exit(127);
-  }
-  ::execlp("gnuplot", "gnuplot", "-e", outfile_arg, script, static_cast<char*>(nullptr));
-  static const char kMsg[] = "gnuplot not found on PATH (Debian package gnuplot-nox)\n";
-  (void)!::write(STDERR_FILENO, kMsg, sizeof kMsg - 1);
-  ::_exit(127);
-}
-
 // Runs gnuplot on `script` in `dir` writing `out`. Returns "" on success,
 // else what went wrong (one line).
 std::string RunGnuplot(const std::string& dir, const std::string& script, const std::string& out) {
-  const std::string outfile_arg = "outfile=\"" + out + "\"";
-  int pipe_fds[2];
-  if (::pipe(pipe_fds) != 0) return "cannot create a pipe";
-  const pid_t pid = ::fork();
-  if (pid < 0) {
-    ::close(pipe_fds[0]);
-    ::close(pipe_fds[1]);
-    return "cannot fork";
+  SpawnRequest request;
+  request.argv = {"gnuplot", "-e", "outfile=\"" + out + "\"", script};
+  request.search_path = true;
+  request.working_dir = dir;
+  request.stderr_to = ChildOutput::kCapture;
+  ChildResult result;
+  try {
+    result = RunChildToEnd(request);
+  } catch (const Error& e) {
+    return std::string(e.what()) + " (Debian package gnuplot-nox)";
   }
-  if (pid == 0) {
-    ::close(pipe_fds[0]);
-    ExecGnuplot(dir.c_str(), outfile_arg.c_str(), script.c_str(), pipe_fds[1]);
-  }
-  ::close(pipe_fds[1]);
-  const std::string err = ReadAll(pipe_fds[0]);
-  ::close(pipe_fds[0]);
-  int status = 0;
-  while (::waitpid(pid, &status, 0) < 0 && errno == EINTR) {
-  }
-  if (WIFEXITED(status) && WEXITSTATUS(status) == 0) return "";
-  return Condense(err);
+  if (ExitCodeOf(result.wait_status) == 0) return "";
+  return Condense(result.stderr_text);
 }
 
 void WriteInPlotDir(const std::string& dir, const std::string& path, const std::string& content) {

@@ -1,5 +1,6 @@
 #include "report/inspect_report.h"
 
+#include <fmt/core.h>
 #include <cmath>
 #include <cstdio>
 #include <nlohmann/json.hpp>
@@ -49,11 +50,7 @@ nlohmann::ordered_json CapacityJson(const DramCapacity& c) {
           {"max_batch_at_context", c.max_batch_at_context}};
 }
 
-std::string G(double v) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.4g", v);
-  return buf;
-}
+std::string G(double v) { return fmt::format("{:.4g}", v); }
 
 // A bound in tokens/s; null when unbounded.
 nlohmann::ordered_json FiniteOrNull(double v) {

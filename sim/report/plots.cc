@@ -1,23 +1,18 @@
 #include "report/plots.h"
 
-#include <fcntl.h>
-#include <sys/wait.h>
-#include <unistd.h>
-
 #include <algorithm>
-#include <cctype>
-#include <cerrno>
 #include <cmath>
-#include <cstdio>
 #include <filesystem>
-#include <iterator>
 #include <limits>
 #include <map>
 #include <sstream>
 #include <system_error>
 
+#include <fmt/core.h>
+
 #include "common/error.h"
 #include "report/gnuplot.h"
+#include "report/plot_style.h"
 #include "trace/trace_format.h"
 
 namespace tritsim {
@@ -29,48 +24,40 @@ constexpr double kHzPerMhz = 1e6;
 constexpr double kRangeDecade = 10.0;  // roofline x margin beyond the points, factor
 constexpr double kRangeMarginY = 3.0;  // roofline y margin, factor
 constexpr double kBarHeadroom = 1.15;  // bar charts: top of the y range over the tallest bar
+constexpr int kPanelWidthPx = 720;     // one roofline panel
+constexpr int kRooflineHeightPx = 720;
+constexpr double kPercent = 100.0;
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
-
-// Text safe inside a gnuplot double-quoted string and in SVG text.
-std::string Sanitize(const std::string& text) {
-  std::string out;
-  for (char c : text) {
-    bool safe = std::isalnum(static_cast<unsigned char>(c)) ||
-                std::string(" _.-/+():,=").find(c) != std::string::npos;
-    out += safe ? c : '_';
-  }
-  return out;
-}
-
-std::string Num(double x) {
-  if (!std::isfinite(x)) return "NaN";
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.6g", x);
-  return buf;
-}
+const Phase kPhases[] = {Phase::kPrefill, Phase::kDecode};
+const char* const kCauses[] = {"busy", "dram_wait", "sram_conflict", "vector_wait", "idle"};
 
 std::string PlotError(const std::string& dir, const std::string& what) {
   return "--plots " + dir + ": " + what;
 }
 
-// The first lines of every script: the output file (overridable with
-// `gnuplot -e 'outfile="x.svg"'`) and the terminal.
-std::string ScriptHeader(const std::string& name, const std::string& what, int width, int height) {
-  std::ostringstream s;
-  s << "# " << what << "\n"
-    << "# Written by tritsim; reads " << name << ".dat from this directory.\n"
-    << "# Restyle freely, then redraw with: gnuplot " << name << ".gp\n"
-    << "if (!exists(\"outfile\")) outfile = \"" << name << ".svg\"\n"
-    << "set terminal svg size " << width << "," << height
-    << " noenhanced font \"sans,12\" background \"white\"\n"
-    << "set output outfile\n"
-    << "set termoption noenhanced  # labels such as attn_scores are literal text\n";
-  return s.str();
-}
+std::string Quoted(const std::string& text) { return "\"" + GnuplotText(text) + "\""; }
 
 std::string RunTitle(const RunResult& run) {
-  return Sanitize(run.arch_name) + " / " + Sanitize(run.model_name);
+  return GnuplotText(run.arch_name) + " / " + GnuplotText(run.model_name);
+}
+
+// A value with an SI prefix and unit, e.g. "8.19 Tops/s", "10.4 mJ".
+std::string Si(double value, const char* unit) {
+  static const std::pair<double, const char*> kPrefixes[] = {
+      {1e15, "P"}, {1e12, "T"}, {1e9, "G"},  {1e6, "M"},  {1e3, "k"},
+      {1.0, ""},   {1e-3, "m"}, {1e-6, "u"}, {1e-9, "n"}, {1e-12, "p"}};
+  for (const auto& [scale, prefix] : kPrefixes) {
+    if (std::fabs(value) >= scale) return fmt::format("{:.3g} {}{}", value / scale, prefix, unit);
+  }
+  return PlotNumber(value) + " " + unit;
+}
+
+const PhaseResult* FindPhase(const RunResult& run, Phase phase) {
+  for (const PhaseResult& p : run.phases) {
+    if (p.phase == phase) return &p;
+  }
+  return nullptr;
 }
 
 // ---------------------------------------------------------------------------
@@ -82,20 +69,64 @@ double AchievedOpsPerSecond(const OpClassPoint& c, double core_mhz) {
   return double(c.ops) * core_mhz * kHzPerMhz / double(c.cycles);
 }
 
+// The ops/s the class's binding resource allows: its own roof.
+double RoofOpsPerSecond(const OpClassPoint& c, double core_mhz) {
+  if (c.bound_cycles == 0 || !std::isfinite(AchievedOpsPerSecond(c, core_mhz))) return kNaN;
+  return double(c.ops) * core_mhz * kHzPerMhz / double(c.bound_cycles);
+}
+
 double Intensity(const OpClassPoint& c) {
   if (c.ops == 0 || c.cycles == 0 || c.dram_bytes == 0) return kNaN;
   return double(c.ops) / double(c.dram_bytes);
 }
 
+bool Drawable(const OpClassPoint& c, double core_mhz) {
+  return std::isfinite(Intensity(c)) && std::isfinite(AchievedOpsPerSecond(c, core_mhz));
+}
+
+// One ceiling: a flat roof in ops/s, or a slope in bytes/s (ops/s =
+// bytes/s x intensity).
+struct Ceiling {
+  Resource resource;
+  std::string words;
+  bool flat = true;
+  double value = 0;
+};
+
+// Every ceiling of the run that can be drawn on these axes (docs/engine.md,
+// "Every resource is a ceiling"). The SRAM ports' roof depends on each op's
+// accesses per op, so it appears only as the own roof of the ops it binds.
+std::vector<Ceiling> Ceilings(const RunResult& run) {
+  std::vector<Ceiling> c = {
+      {Resource::kTreeArray, "tree array", true, run.peak_ops_per_second},
+      {Resource::kDramBandwidth, "DRAM bandwidth", false, run.dram_peak_bytes_per_second}};
+  if (run.vector_peak_ops_per_second > 0) {
+    c.push_back({Resource::kVectorUnit, "vector unit", true, run.vector_peak_ops_per_second});
+  }
+  if (run.concurrency_bytes_per_second > 0 &&
+      run.concurrency_bytes_per_second < run.dram_peak_bytes_per_second) {
+    c.push_back({Resource::kRequestConcurrency, "request concurrency (Little's law)", false,
+                 run.concurrency_bytes_per_second});
+  }
+  if (run.decoder_bytes_per_second > 0) {
+    c.push_back({Resource::kTritDecoder, "trit decoder (if every byte is a weight)", false,
+                 run.decoder_bytes_per_second});
+  }
+  return c;
+}
+
 std::string RooflineData(const RunResult& run, const std::vector<OpClassPoint>& classes) {
   std::ostringstream s;
-  s << "# tritsim roofline of " << RunTitle(run) << ": one row per op class\n"
+  s << "# tritsim roofline of " << RunTitle(run) << ": one row per op class and phase\n"
     << "# NaN: no DRAM bytes, ops or cycles (no point on log axes)\n"
-    << "# label intensity_ops_per_byte achieved_ops_per_second ops dram_bytes cycles\n";
+    << "# roof: ops/s the class's binding resource (bound_by) allows\n"
+    << "# label phase intensity_ops_per_byte achieved_ops_per_second ops dram_bytes cycles "
+       "roof_ops_per_second bound_by\n";
   for (const auto& c : classes) {
-    s << '"' << Sanitize(c.label) << "\" " << Num(Intensity(c)) << ' '
-      << Num(AchievedOpsPerSecond(c, run.core_mhz)) << ' ' << c.ops << ' ' << c.dram_bytes << ' '
-      << c.cycles << '\n';
+    s << Quoted(c.label) << ' ' << PhaseName(c.phase) << ' ' << PlotNumber(Intensity(c)) << ' '
+      << PlotNumber(AchievedOpsPerSecond(c, run.core_mhz)) << ' ' << c.ops << ' ' << c.dram_bytes
+      << ' ' << c.cycles << ' ' << PlotNumber(RoofOpsPerSecond(c, run.core_mhz)) << ' '
+      << ResourceName(c.bound_by) << '\n';
   }
   return s.str();
 }
@@ -104,186 +135,242 @@ struct AxisRanges {
   double x_min, x_max, y_min, y_max;
 };
 
-// x spans the points and the ridge point a decade either side; y spans the
-// lowest point (or the ceiling at x_min) up to above the peak.
+// x spans the points and the ridge points a decade either side; y spans the
+// lowest point up to above the highest roof. The same for every panel.
 AxisRanges RooflineRanges(const RunResult& run, const std::vector<OpClassPoint>& classes) {
-  const double peak = run.peak_ops_per_second;
-  const double bw = run.dram_peak_bytes_per_second;
-  const double ridge = peak / bw;
-  double x_lo = ridge, x_hi = ridge, y_lo = peak;
+  const double top = run.peak_ops_per_second;
+  double x_lo = top / run.dram_peak_bytes_per_second, x_hi = x_lo, y_lo = top;
+  for (const Ceiling& c : Ceilings(run)) {
+    if (c.flat) {
+      y_lo = std::min(y_lo, c.value);
+    } else {
+      x_lo = std::min(x_lo, top / c.value);
+      x_hi = std::max(x_hi, top / c.value);
+    }
+  }
   for (const auto& c : classes) {
-    double x = Intensity(c), y = AchievedOpsPerSecond(c, run.core_mhz);
+    const double x = Intensity(c), y = AchievedOpsPerSecond(c, run.core_mhz);
     if (!std::isfinite(x) || !std::isfinite(y)) continue;
     x_lo = std::min(x_lo, x);
     x_hi = std::max(x_hi, x);
     y_lo = std::min(y_lo, y);
   }
-  AxisRanges r{x_lo / kRangeDecade, x_hi * kRangeDecade, 0.0, peak * kRangeMarginY};
-  r.y_min = std::min(y_lo, bw * r.x_min) / kRangeMarginY;
+  AxisRanges r{x_lo / kRangeDecade, x_hi * kRangeDecade, 0.0, top * kRangeMarginY};
+  r.y_min = std::min(y_lo, run.dram_peak_bytes_per_second * r.x_min) / kRangeMarginY;
   return r;
 }
 
-bool Drawable(const OpClassPoint& c, double core_mhz) {
-  return std::isfinite(Intensity(c)) && std::isfinite(AchievedOpsPerSecond(c, core_mhz));
+// The angle on screen of a line of slope 1 in log-log data space, for a
+// panel whose plotting area is about kPlotAreaWidthPx x kPlotAreaHeightPx.
+double SlopeDegrees(const AxisRanges& r) {
+  constexpr double kPlotAreaWidthPx = 620, kPlotAreaHeightPx = 440;
+  constexpr double kDegreesPerRadian = 57.29577951308232;
+  const double px_per_decade_x = kPlotAreaWidthPx / std::log10(r.x_max / r.x_min);
+  const double px_per_decade_y = kPlotAreaHeightPx / std::log10(r.y_max / r.y_min);
+  return std::atan2(px_per_decade_y, px_per_decade_x) * kDegreesPerRadian;
 }
 
-// Point types cycled through by the classes, filled shapes first.
-constexpr int kPointTypes[] = {7, 5, 9, 11, 13, 15, 4, 6, 8, 10, 12, 14, 1, 2, 3};
-
-std::string GnuplotArray(const std::string& name, const std::vector<std::string>& items) {
-  std::string out = "array " + name + "[" + std::to_string(items.size()) + "] = [";
-  for (size_t i = 0; i < items.size(); ++i) out += (i ? ", " : "") + items[i];
-  return out + "]\n";
-}
-
-// The ceilings besides the tree array's and DRAM bandwidth's, each a line
-// with its name (docs/engine.md, "Every resource is a ceiling"): the vector
-// unit's peak, Little's law on the DMA window, and the trit decoder, whose
-// roof assumes every DRAM byte is a packed weight (true of decode GEMMs).
-std::string OtherCeilings(const RunResult& run) {
-  std::ostringstream s;
-  s << ", \\\n     " << Num(run.vector_peak_ops_per_second)
-    << " title \"vector unit peak\" with lines lw 1.5 dt 2 lc rgb \"#1b7837\"";
-  if (run.concurrency_bytes_per_second > 0 &&
-      run.concurrency_bytes_per_second < run.dram_peak_bytes_per_second) {
-    s << ", \\\n     " << Num(run.concurrency_bytes_per_second)
-      << " * x title \"request concurrency (Little's law)\" with lines lw 1.5 dt 3 "
-         "lc rgb \"#b2182b\"";
+// The ceiling lines (no key entry) and a label on each: flat roofs at the
+// right end, slopes where they enter the plot from the left or bottom. A
+// slope stops at the tree array's roof, above which no op can go.
+std::string CeilingLines(const RunResult& run, const AxisRanges& r, int first_label) {
+  std::ostringstream labels, lines;
+  int label = first_label;
+  bool left_flat = false;
+  for (const Ceiling& c : Ceilings(run)) {
+    const PlotStyle st = CeilingStyle(ResourceName(c.resource));
+    const std::string text = c.words + ": " + Si(c.value, c.flat ? "ops/s" : "B/s");
+    if (c.flat) {
+      // The tree array's label at the right end, any lower flat roof's at the left.
+      const bool right = !left_flat && c.resource == Resource::kTreeArray;
+      left_flat = left_flat || !right;
+      labels << "set label " << label++ << " " << Quoted(text) << " at "
+             << PlotNumber(right ? r.x_max / 1.15 : r.x_min * 1.15) << ", " << PlotNumber(c.value)
+             << (right ? " right" : " left") << " offset 0,0.7 textcolor rgb \"" << st.colour
+             << "\" front\n";
+      lines << ", \\\n     " << PlotNumber(c.value) << " notitle with lines lw 2 "
+            << GnuplotLineStyle(st);
+    } else {
+      // Written along the line, just above it, from where it enters the plot.
+      const double x_enter = std::max(r.x_min * 1.3, r.y_min * 2.0 / c.value);
+      labels << "set label " << label++ << " " << Quoted(text) << " at " << PlotNumber(x_enter)
+             << ", " << PlotNumber(c.value * x_enter) << " left rotate by "
+             << fmt::format("{:.0f}", SlopeDegrees(r)) << " offset -0.6,0.9 textcolor rgb \""
+             << st.colour << "\" front\n";
+      lines << ", \\\n     (" << PlotNumber(c.value)
+            << " * x <= " << PlotNumber(run.peak_ops_per_second) << " ? " << PlotNumber(c.value)
+            << " * x : 1/0) notitle with lines lw 2 " << GnuplotLineStyle(st);
+    }
   }
-  if (run.decoder_bytes_per_second > 0) {
-    s << ", \\\n     " << Num(run.decoder_bytes_per_second)
-      << " * x title \"trit decoder (weight bytes)\" with lines lw 1.5 dt 4 "
-         "lc rgb \"#762a83\"";
-  }
-  return s.str();
+  return labels.str() + "#LINES#" + lines.str();
 }
 
-// The points: one plot clause per drawable class (own key entry and point
-// type), selected from roofline.dat by row number; the rest are listed in a
-// note under the key.
-std::string RooflinePoints(const RunResult& run, const std::vector<OpClassPoint>& classes) {
-  std::vector<std::string> rows, labels, types, undrawn;
+// One panel: the phase's classes as points, each with a dotted line up to
+// its own roof. Rows are selected from roofline.dat by number.
+std::string RooflinePanel(const RunResult& run, const std::vector<OpClassPoint>& classes,
+                          Phase phase, const AxisRanges& r) {
+  std::ostringstream points, undrawn;
+  int drawn = 0;
   for (size_t i = 0; i < classes.size(); ++i) {
-    const std::string label = "\"" + Sanitize(classes[i].label) + "\"";
-    if (!Drawable(classes[i], run.core_mhz)) {
-      undrawn.push_back(Sanitize(classes[i].label));
+    const OpClassPoint& c = classes[i];
+    if (c.phase != phase) continue;
+    if (!Drawable(c, run.core_mhz)) {
+      undrawn << (undrawn.tellp() > 0 ? ", " : "") << GnuplotText(c.label);
       continue;
     }
-    rows.push_back(std::to_string(i));
-    labels.push_back(label);
-    types.push_back(std::to_string(kPointTypes[(labels.size() - 1) % std::size(kPointTypes)]));
+    ++drawn;
+    const PlotStyle st = OpClassStyle(c.label);
+    const double share = AchievedOpsPerSecond(c, run.core_mhz) / RoofOpsPerSecond(c, run.core_mhz);
+    const std::string key =
+        c.label + ": " + ResourceName(c.bound_by) +
+        (std::isfinite(share) ? fmt::format(", {:.0f}% of roof", share * kPercent) : std::string());
+    points << ", \\\n     \"roofline.dat\" every ::" << i << "::" << i
+           << " using 3:4:(0):($8-$4) notitle with vectors nohead dt 3 lw 1.5 linecolor rgb \""
+           << st.colour << "\"";
+    points << ", \\\n     \"roofline.dat\" every ::" << i << "::" << i << " using 3:4 title "
+           << Quoted(key) << " with points ps 1.8 lw 2 " << GnuplotStyle(st);
   }
+  const PhaseResult* p = FindPhase(run, phase);
   std::ostringstream s;
-  if (!undrawn.empty()) {
-    std::string note = "not drawn (no DRAM\\nbytes, ops or cycles):";
-    for (size_t i = 0; i < undrawn.size(); ++i) note += (i % 2 ? ", " : "\\n") + undrawn[i];
-    s << "set label 1 \"" << note << "\" at graph 1.04, graph 0.38 left front\n";
+  std::string title = std::string(PhaseName(phase));
+  if (p) {
+    const double seconds = run.core_mhz > 0 ? double(p->cycles) / (run.core_mhz * kHzPerMhz) : 0;
+    title += fmt::format(": {} tokens in {}, bound by {}", p->tokens, Si(seconds, "s"),
+                         ResourceName(p->bound_by));
   }
-  s << "plot ceiling(x) title \"ceiling (tree array, DRAM bandwidth)\" "
-       "with lines lw 2 lc rgb \"#303030\""
-    << OtherCeilings(run);
-  if (!rows.empty()) {
-    s << ", \\\n     for [i=1:" << rows.size() << "] \"roofline.dat\" "
-      << "every ::point_row[i]::point_row[i] using 2:3 with points pt point_type[i] ps 1.5 lw 2 "
-         "title point_label[i]";
+  s << "set title " << Quoted(title) << "\n"
+    << "unset label\n";
+  const std::string ceilings = CeilingLines(run, r, 1);
+  const size_t cut = ceilings.find("#LINES#");
+  s << ceilings.substr(0, cut);
+  if (undrawn.tellp() > 0) {
+    s << "set label 99 " << Quoted("not drawn (no DRAM bytes, ops or cycles): " + undrawn.str())
+      << " at graph 0.02, graph 0.03 left front font \",9\"\n";
   }
-  s << "\n";
-  std::string arrays;
-  if (!rows.empty()) {
-    arrays = "# rows of roofline.dat drawn, from 0 (comment lines do not count)\n" +
-             GnuplotArray("point_row", rows) + GnuplotArray("point_label", labels) +
-             GnuplotArray("point_type", types);
-  }
-  return arrays + s.str();
+  // gnuplot needs one plot clause before the first ", ": an invisible point.
+  s << "plot 1/0 notitle" << ceilings.substr(cut + 7);
+  if (drawn == 0) s << ", \\\n     1/0 title \"no op of this phase has a point\"";
+  s << points.str() << "\n";
+  return s.str();
 }
 
 std::string RooflineScript(const RunResult& run, const std::vector<OpClassPoint>& classes) {
   const AxisRanges r = RooflineRanges(run, classes);
+  std::vector<Phase> phases;
+  for (Phase ph : kPhases) {
+    if (FindPhase(run, ph) || std::any_of(classes.begin(), classes.end(),
+                                          [&](const OpClassPoint& c) { return c.phase == ph; })) {
+      phases.push_back(ph);
+    }
+  }
+  if (phases.empty()) phases.push_back(Phase::kDecode);
   std::ostringstream s;
-  s << ScriptHeader("roofline", "Roofline (Williams, Waterman, Patterson, CACM 2009) of one run",
-                    960, 600)
-    << "peak_ops_per_second = " << Num(run.peak_ops_per_second) << "\n"
-    << "dram_bytes_per_second = " << Num(run.dram_peak_bytes_per_second) << "\n"
-    << "ceiling(x) = (dram_bytes_per_second * x < peak_ops_per_second) ? "
-       "dram_bytes_per_second * x : peak_ops_per_second\n"
-    << "set title \"Roofline: " << RunTitle(run) << "\\nceiling = min(peak "
-    << Num(run.peak_ops_per_second) << " ops/s, DRAM " << Num(run.dram_peak_bytes_per_second)
-    << " B/s x intensity)\"\n"
-    << "set logscale xy\n"
-    << "set xrange [" << Num(r.x_min) << ":" << Num(r.x_max) << "]\n"
-    << "set yrange [" << Num(r.y_min) << ":" << Num(r.y_max) << "]\n"
+  s << GnuplotHeader("roofline",
+                     "Roofline (Williams, Waterman, Patterson, CACM 2009) of one run, per phase",
+                     "tritsim", kPanelWidthPx * int(phases.size()), kRooflineHeightPx)
+    << "set multiplot layout 1," << phases.size() << " title "
+    << Quoted("Roofline: " + RunTitle(run)) << "\n"
+    << "set logscale xy 10\n"
+    << "set xrange [" << PlotNumber(r.x_min) << ":" << PlotNumber(r.x_max) << "]\n"
+    << "set yrange [" << PlotNumber(r.y_min) << ":" << PlotNumber(r.y_max) << "]\n"
     << "set format y \"%.0s%c\"\n"
     << "set xlabel \"operational intensity (ops per DRAM byte)\"\n"
     << "set ylabel \"achieved ops per second\"\n"
     << "set grid\n"
-    << "set key outside right top\n"
-    << "set samples 1000\n"
-    << RooflinePoints(run, classes);
+    << "set bmargin 14  # room for the key below the x label\n"
+    << "set samples 400\n";
+  for (size_t i = 0; i < phases.size(); ++i) {
+    s << "\n# Panel " << i + 1 << ": " << PhaseName(phases[i]) << "\n"
+      << "panel = " << i + 1 << "\n"
+      << "set key at screen 0.02 + 0.98 * (panel - 1) / " << phases.size()
+      << ", screen 0.01 left bottom vertical maxrows 8 Left reverse samplen 1.5\n"
+      << RooflinePanel(run, classes, phases[i], r);
+  }
+  s << "unset multiplot\n";
   return s.str();
 }
 
 // ---------------------------------------------------------------------------
 // Stalls.
 
+uint64_t CauseCycles(const StallBreakdown& st, const std::string& cause) {
+  if (cause == "busy") return st.busy;
+  if (cause == "dram_wait") return st.dram_wait;
+  if (cause == "sram_conflict") return st.sram_conflict;
+  if (cause == "vector_wait") return st.vector_wait;
+  return st.idle;
+}
+
+// Phases with their stalls: the run's phases, or the whole run when it
+// names none.
+std::vector<std::pair<std::string, StallBreakdown>> StallColumns(const RunResult& run) {
+  std::vector<std::pair<std::string, StallBreakdown>> out;
+  for (Phase ph : kPhases) {
+    if (const PhaseResult* p = FindPhase(run, ph)) out.push_back({PhaseName(ph), p->stalls});
+  }
+  if (out.empty()) out.push_back({"whole run", run.stalls});
+  return out;
+}
+
 std::string StallsData(const RunResult& run) {
-  const StallBreakdown& st = run.stalls;
-  const std::pair<const char*, uint64_t> causes[] = {{"busy", st.busy},
-                                                     {"dram_wait", st.dram_wait},
-                                                     {"sram_conflict", st.sram_conflict},
-                                                     {"vector_wait", st.vector_wait},
-                                                     {"idle", st.idle}};
-  const double total = double(st.total());
+  const auto columns = StallColumns(run);
   std::ostringstream s;
-  s << "# tritsim tree-array cycles of " << RunTitle(run) << "\n"
-    << "# index 0: cycles by cause over the whole run\n"
-    << "# cause cycles share_percent\n";
-  for (const auto& [cause, cycles] : causes) {
-    s << cause << ' ' << cycles << ' ' << Num(total > 0 ? 100.0 * double(cycles) / total : 0.0)
-      << '\n';
-  }
-  s << "\n\n# index 1: core cycles per phase\n# phase cycles tokens\n";
-  std::map<Phase, std::pair<uint64_t, uint64_t>> per_phase;
-  for (const auto& p : run.phases) {
-    per_phase[p.phase].first += p.cycles;
-    per_phase[p.phase].second += p.tokens;
-  }
-  if (per_phase.empty()) s << "none 0 0\n";
-  for (const auto& [phase, sums] : per_phase) {
-    s << PhaseName(phase) << ' ' << sums.first << ' ' << sums.second << '\n';
+  s << "# tritsim tree-array cycles by cause, per phase, of " << RunTitle(run) << "\n";
+  for (int index = 0; index < 2; ++index) {
+    s << (index ? "\n\n# index 1: cycles\n" : "# index 0: percent of the phase's cycles\n")
+      << "# phase";
+    for (const char* cause : kCauses) s << ' ' << cause;
+    s << '\n';
+    for (const auto& [name, st] : columns) {
+      s << Quoted(name);
+      const double total = double(st.total());
+      for (const char* cause : kCauses) {
+        const double cycles = double(CauseCycles(st, cause));
+        s << ' '
+          << (index ? std::to_string(CauseCycles(st, cause))
+                    : PlotNumber(total > 0 ? kPercent * cycles / total : 0.0));
+      }
+      s << '\n';
+    }
   }
   return s.str();
 }
 
-uint64_t MaxPhaseCycles(const RunResult& run) {
-  std::map<Phase, uint64_t> per_phase;
-  uint64_t most = 0;
-  for (const auto& p : run.phases) most = std::max(most, per_phase[p.phase] += p.cycles);
-  return most;
-}
-
 std::string StallsScript(const RunResult& run) {
-  const double phase_top = std::max(1.0, double(MaxPhaseCycles(run)) * kBarHeadroom);
+  uint64_t most = 1;
+  for (const auto& column : StallColumns(run)) most = std::max(most, column.second.total());
+  std::string causes, colours;
+  for (const char* cause : kCauses) {
+    causes += std::string(causes.empty() ? "" : ", ") + "\"" + CauseWords(cause) + "\"";
+    colours += std::string(colours.empty() ? "" : " ") + StallCauseStyle(cause).colour;
+  }
   std::ostringstream s;
-  s << ScriptHeader("stalls", "Tree-array cycles by cause, and cycles per phase", 960, 520)
-    << "set multiplot layout 1,2 title \"Tree-array cycles: " << RunTitle(run) << "\"\n"
-    << "set style fill solid 0.85 border -1\n"
-    << "set boxwidth 0.5\n"
-    << "# left: cycles by cause over the whole run, stacked, percent\n"
+  s << GnuplotHeader("stalls", "Tree-array cycles by cause, per phase", "tritsim", 1000, 520)
+    << "array cause[5] = [" << causes << "]\n"
+    << "colours = \"" << colours << "\"\n"
+    << "set multiplot layout 1,2 title "
+    << Quoted("Tree-array cycles by cause, per phase: " + RunTitle(run)) << "\n"
     << "set style data histograms\n"
-    << "set style histogram columnstacked\n"
-    << "set xtics (\"whole run\" 0)\n"
+    << "set style histogram rowstacked\n"
+    << "set style fill solid 0.9 border -1\n"
+    << "set boxwidth 0.6\n"
+    << "set grid ytics\n"
+    << "set bmargin 6  # room for the key below\n"
+    << "set key at screen 0.5, screen 0.02 center bottom horizontal maxcols 5 title \"cause\"\n"
+    << "# left: share of each phase's cycles\n"
+    << "set title \"share of each phase's cycles\"\n"
     << "set yrange [0:100]\n"
-    << "set ylabel \"share of run cycles (%)\"\n"
-    << "set key outside right title \"cause\"\n"
-    << "plot \"stalls.dat\" index 0 using 3:key(1) notitle\n"
-    << "# right: core cycles per phase\n"
-    << "set style histogram clustered\n"
-    << "set xtics autofreq\n"
-    << "set yrange [0:" << Num(phase_top) << "]\n"
-    << "set format y \"%.1s%c\"\n"
-    << "set ylabel \"core cycles\"\n"
+    << "set ylabel \"share of the phase's cycles (%)\"\n"
+    << "plot for [i=2:6] \"stalls.dat\" index 0 using i:xtic(1) linecolor rgb word(colours, i-1) "
+       "title cause[i-1]\n"
+    << "# right: cycles, so the phases' sizes compare\n"
+    << "set title \"cycles of each phase\"\n"
     << "unset key\n"
-    << "plot \"stalls.dat\" index 1 using 2:xtic(1) lc rgb \"#1f6fb4\" notitle\n"
+    << "set yrange [0:" << PlotNumber(double(most) * kBarHeadroom) << "]\n"
+    << "set format y \"%.0s%c\"\n"
+    << "set ylabel \"core cycles\"\n"
+    << "plot for [i=2:6] \"stalls.dat\" index 1 using i:xtic(1) linecolor rgb word(colours, i-1) "
+       "title cause[i-1]\n"
     << "unset multiplot\n";
   return s.str();
 }
@@ -291,57 +378,48 @@ std::string StallsScript(const RunResult& run) {
 // ---------------------------------------------------------------------------
 // Energy.
 
+std::vector<std::pair<const char*, double>> EnergyParts(const EnergyBreakdown& e) {
+  return {{"arithmetic", e.arithmetic_joules},
+          {"sram", e.sram_joules},
+          {"dram", e.dram_joules},
+          {"decoder", e.decoder_joules},
+          {"leakage", e.leakage_joules}};
+}
+
 std::string EnergyData(const RunResult& run, const EnergyBreakdown& e) {
-  const std::pair<const char*, double> parts[] = {{"arithmetic", e.arithmetic_joules},
-                                                  {"sram", e.sram_joules},
-                                                  {"dram", e.dram_joules},
-                                                  {"decoder", e.decoder_joules},
-                                                  {"leakage", e.leakage_joules}};
   const double total = e.total_joules();
   std::ostringstream s;
   s << "# tritsim energy of " << RunTitle(run) << " by component\n"
-    << "# component joules share_percent\n";
-  for (const auto& [name, joules] : parts) {
-    s << name << ' ' << Num(joules) << ' ' << Num(total > 0 ? 100.0 * joules / total : 0.0) << '\n';
+    << "# component joules share_percent colour_as_rgb_integer\n";
+  for (const auto& [name, joules] : EnergyParts(e)) {
+    s << Quoted(CauseWords(name)) << ' ' << PlotNumber(joules) << ' '
+      << PlotNumber(total > 0 ? kPercent * joules / total : 0.0) << ' '
+      << std::stol(EnergyComponentStyle(name).colour.substr(1), nullptr, 16) << '\n';
   }
   return s.str();
 }
 
-// Joules with an SI prefix, e.g. "10.4 mJ".
-std::string Joules(double joules) {
-  static const std::pair<double, const char*> kPrefixes[] = {
-      {1.0, ""}, {1e-3, "m"}, {1e-6, "u"}, {1e-9, "n"}, {1e-12, "p"}};
-  for (const auto& [scale, prefix] : kPrefixes) {
-    if (std::fabs(joules) >= scale) {
-      char buf[48];
-      std::snprintf(buf, sizeof buf, "%.3g %sJ", joules / scale, prefix);
-      return buf;
-    }
-  }
-  return Num(joules) + " J";
-}
-
 std::string EnergyTitle(const RunResult& run, const EnergyBreakdown& e) {
-  std::string title = "Energy: " + RunTitle(run) + ", total " + Joules(e.total_joules());
-  if (run.tokens > 0) title += ", " + Joules(e.total_joules() / double(run.tokens)) + " per token";
+  std::string title = "Energy: " + RunTitle(run) + ", total " + Si(e.total_joules(), "J");
+  if (run.tokens > 0) title += ", " + Si(e.total_joules() / double(run.tokens), "J") + " per token";
   return title;
 }
 
 std::string EnergyScript(const RunResult& run, const EnergyBreakdown& e) {
-  const double tallest = std::max(
-      {e.arithmetic_joules, e.sram_joules, e.dram_joules, e.decoder_joules, e.leakage_joules});
+  double tallest = 0;
+  for (const auto& part : EnergyParts(e)) tallest = std::max(tallest, part.second);
   const double top = tallest > 0 ? tallest * kBarHeadroom : 1.0;
   std::ostringstream s;
-  s << ScriptHeader("energy", "Energy of one run by component", 760, 520) << "set title \""
-    << EnergyTitle(run, e) << "\"\n"
-    << "set style fill solid 0.85 border -1\n"
+  s << GnuplotHeader("energy", "Energy of one run by component", "tritsim", 760, 520)
+    << "set title " << Quoted(EnergyTitle(run, e)) << "\n"
+    << "set style fill solid 0.9 border -1\n"
     << "set boxwidth 0.6\n"
-    << "set yrange [0:" << Num(top) << "]\n"
+    << "set yrange [0:" << PlotNumber(top) << "]\n"
     << "set format y \"%.1s %cJ\"\n"
     << "set ylabel \"energy\"\n"
     << "set grid ytics\n"
     << "unset key\n"
-    << "plot \"energy.dat\" using 0:2:xtic(1) with boxes lc rgb \"#d9822b\", \\\n"
+    << "plot \"energy.dat\" using 0:2:4:xtic(1) with boxes linecolor rgb variable, \\\n"
     << "     \"energy.dat\" using 0:2:(sprintf(\"%.1f%%\", $3)) with labels offset char 0,0.8 "
        "notitle\n";
   return s.str();
@@ -373,15 +451,25 @@ std::string OpClassLabel(const TraceOp& op) {
 
 std::vector<OpClassPoint> GroupOpClasses(const RunResult& run) {
   std::vector<OpClassPoint> classes;
-  std::map<std::string, size_t> index;
+  std::map<std::pair<Phase, std::string>, size_t> index;
   for (const auto& layer : run.layers) {
     const std::string label = OpClassLabel(layer.op);
-    auto [it, inserted] = index.emplace(label, classes.size());
-    if (inserted) classes.push_back(OpClassPoint{label, 0, 0, 0});
+    auto [it, inserted] = index.emplace(std::make_pair(layer.op.phase, label), classes.size());
+    if (inserted) {
+      OpClassPoint fresh;
+      fresh.label = label;
+      fresh.phase = layer.op.phase;
+      classes.push_back(fresh);
+    }
     OpClassPoint& c = classes[it->second];
     c.ops += layer.ops;
     c.dram_bytes += layer.dram_bytes;
     c.cycles += layer.cycles;
+    c.bound_cycles += layer.bound_cycles;
+    if (layer.bound_cycles > c.most_bound_cycles) {
+      c.most_bound_cycles = layer.bound_cycles;
+      c.bound_by = layer.bound_by;
+    }
   }
   return classes;
 }

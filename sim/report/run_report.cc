@@ -29,11 +29,7 @@ uint64_t DecodeTokensPerSequence(const RunReport& r) {
   return uint64_t(std::max<int64_t>(0, r.workload.decode_tokens));
 }
 
-std::string Fixed(double value, int digits) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", digits, value);
-  return buf;
-}
+std::string Fixed(double value, int digits) { return fmt::format("{:.{}f}", value, digits); }
 
 std::string Scaled(double value, const char* unit) {
   const char* prefixes[] = {"", "k", "M", "G", "T", "P"};
@@ -348,12 +344,9 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
          "bound\n";
   for (size_t i = 0; i < std::min<size_t>(8, top.size()); ++i) {
     const OpResult& l = *top[i];
-    char line[256];
-    std::snprintf(line, sizeof line, "    %-8s %5lld  %-16s %10llu %9.1f  %-19s %6.1f%%\n",
-                  PhaseName(l.op.phase), static_cast<long long>(l.op.layer), l.op.name.c_str(),
-                  static_cast<unsigned long long>(l.cycles), l.intensity(),
-                  ResourceName(l.bound_by), Efficiency(l) * 100.0);
-    out << line;
+    out << fmt::format("    {:<8} {:>5}  {:<16} {:>10} {:>9.1f}  {:<19} {:>6.1f}%\n",
+                       PhaseName(l.op.phase), l.op.layer, l.op.name, l.cycles, l.intensity(),
+                       ResourceName(l.bound_by), Efficiency(l) * 100.0);
   }
   out << "\n  Model estimates for architecture exploration, not sign-off numbers.\n";
 }

@@ -152,6 +152,10 @@ struct PhaseResult {
   uint64_t cycles = 0;
   uint64_t tokens = 0;    // tokens produced or consumed (batch x tokens)
   ResourceDemand demand;  // of every op of the phase
+  // Tree-array cycles of the phase by cause; they sum to `cycles`. A wait
+  // is charged to the phase of the tile waited for, the final drain to the
+  // last phase.
+  StallBreakdown stalls;
   Resource bound_by = Resource::kDramBandwidth;
   uint64_t bound_cycles = 0;  // the binding resource's cycles for `demand`
 };

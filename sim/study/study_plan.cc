@@ -1,6 +1,7 @@
 // Study plan. See study_plan.h.
 #include "study/study_plan.h"
 
+#include <fmt/core.h>
 #include <cstdio>
 #include <fstream>
 #include <sstream>
@@ -43,10 +44,7 @@ std::string VariantId(size_t index, const StudyVariant& v) {
   for (int64_t n : {w.prefill_tokens, w.decode_tokens, w.context_tokens, w.batch}) {
     h = Fnv(h, std::to_string(n));
   }
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "v%02zu-%0*llx", index, kIdHashHexDigits,
-                static_cast<unsigned long long>(h >> 32));
-  return buf;
+  return fmt::format("v{:02}-{:0{}x}", index, h >> 32, kIdHashHexDigits);
 }
 
 // Loads the variant's files with its overrides; what it implies.

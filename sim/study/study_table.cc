@@ -1,6 +1,7 @@
 // Study table. See study_table.h.
 #include "study/study_table.h"
 
+#include <fmt/core.h>
 #include <cmath>
 #include <cstdio>
 #include <limits>
@@ -96,9 +97,7 @@ double Positive(double v) { return v > 0 ? v : kNaN; }
 
 std::string Cell(double v) {
   if (std::isnan(v)) return "-";
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.4g", v);
-  return buf;
+  return fmt::format("{:.4g}", v);
 }
 
 std::string Csv(double v) { return std::isnan(v) ? "" : FormatExact(v); }

@@ -6,14 +6,20 @@
 // name and renamed into place.
 //
 // Plots:
+// Styles, axis words and scales come from report/plot_style.h.
+//
 // - front: every ok point as a dot in the plane of the first two
 //   objectives, the Pareto front as a line through its points (sorted by
-//   the first objective). With three objectives the plane shows the first
-//   two and the front holds the points non-dominated in all three.
+//   the first objective), each front point labelled with its plan index
+//   and axis values ("p0007: 128 trees, batch 16"). With three objectives
+//   the plane shows the first two and the front holds the points
+//   non-dominated in all three.
 // - METRIC-by-AXIS: METRIC against the values of one axis, one line per
 //   combination of the other axes' values (at most kMaxSeries lines; more
-//   combinations are drawn as points without lines). Axis values that are
-//   not all numbers are placed in order of first appearance and labelled.
+//   combinations are drawn as points without lines), each in its own
+//   colour, dash and marker. Axis values that are not all numbers are
+//   placed in order of first appearance and labelled; powers of two get a
+//   log-2 axis.
 #pragma once
 
 #include <cstddef>

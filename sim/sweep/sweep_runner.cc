@@ -1,12 +1,11 @@
 // Child-process sweep runner. See sweep_runner.h.
 #include "sweep/sweep_runner.h"
 
-#include <fcntl.h>
 #include <signal.h>
 #include <sys/wait.h>
-#include <unistd.h>
 #include <nlohmann/json.hpp>
 
+#include <fmt/core.h>
 #include <cerrno>
 #include <chrono>
 #include <csignal>
@@ -19,6 +18,7 @@
 #include <sstream>
 
 #include "common/error.h"
+#include "common/subprocess.h"
 #include "sweep/sweep_csv.h"
 
 namespace tritsim {
@@ -28,7 +28,6 @@ namespace fs = std::filesystem;
 using Clock = std::chrono::steady_clock;
 
 constexpr size_t kMaxErrorChars = 300;  // child stderr quoted in a row
-constexpr int kExecFailedCode = 127;    // shell convention for "could not run the program"
 
 volatile std::sig_atomic_t g_stop_signal = 0;
 
@@ -87,42 +86,17 @@ std::string LastLine(const std::string& text) {
   return last.empty() ? "no message" : last;
 }
 
-// Child side of fork: redirect and exec. Only async-signal-safe calls.
-[[noreturn]] void ExecChild(const char* program, char* const argv[], const char* stderr_path) {
-  const int null_fd = ::open("/dev/null", O_RDWR);
-  const int err_fd = ::open(stderr_path, O_WRONLY | O_CREAT | O_TRUNC, 0644);
-  if (null_fd >= 0) {
-    ::dup2(null_fd, STDIN_FILENO);
-    ::dup2(null_fd, STDOUT_FILENO);
-  }
-  if (err_fd >= 0) ::dup2(err_fd, STDERR_FILENO);
-  ::signal(SIGINT, SIG_DFL);
-  ::signal(SIGTERM, SIG_DFL);
-  ::execv(program, argv);
-  static const char kMsg[] = "cannot execute the tritsim binary\n";
-  (void)!::write(STDERR_FILENO, kMsg, sizeof kMsg - 1);
-  ::_exit(kExecFailedCode);
-}
-
 pid_t Spawn(const SweepRunOptions& options, const std::vector<std::string>& args,
             const std::string& stderr_path) {
-  std::vector<std::string> all = {options.tritsim_path};
-  all.insert(all.end(), args.begin(), args.end());
-  std::vector<char*> argv;
-  for (std::string& a : all) argv.push_back(a.data());
-  argv.push_back(nullptr);
-  const pid_t pid = ::fork();
-  if (pid < 0)
-    throw Error(ExitCode::kInternal, std::string("cannot fork: ") + std::strerror(errno));
-  if (pid == 0) ExecChild(options.tritsim_path.c_str(), argv.data(), stderr_path.c_str());
-  return pid;
+  SpawnRequest request;
+  request.argv = {options.tritsim_path};
+  request.argv.insert(request.argv.end(), args.begin(), args.end());
+  request.stderr_to = ChildOutput::kFile;
+  request.stderr_file = stderr_path;
+  return SpawnChild(request);
 }
 
-std::string FormatSeconds(double s) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, s < 100 ? "%.1f s" : "%.0f s", s);
-  return buf;
-}
+std::string FormatSeconds(double s) { return fmt::format(s < 100 ? "{:.1f} s" : "{:.0f} s", s); }
 
 void DrawProgress(size_t done, size_t total, size_t failed, double elapsed) {
   const double eta = done > 0 ? elapsed / double(done) * double(total - done) : 0.0;

@@ -11,8 +11,10 @@
 #include <set>
 #include <sstream>
 #include <string>
+#include <tuple>
 
 #include "common/error.h"
+#include "report/plot_style.h"
 
 namespace tritsim {
 namespace {
@@ -52,8 +54,9 @@ RunResult SmallRun() {
   run.cycles = run.stalls.total();
   run.sim_ps = run.cycles * 1000;
   run.tokens = 4;
-  run.phases = {
-      {Phase::kPrefill, 1500000, 16}, {Phase::kDecode, 700000, 2}, {Phase::kDecode, 700000, 2}};
+  run.phases = {{Phase::kPrefill, 1500000, 16}, {Phase::kDecode, 1400000, 4}};
+  run.phases[0].stalls = {400000, 1000000, 10000, 40000, 50000};
+  run.phases[1].stalls = {200000, 1200000, 0, 0, 0};
   return run;
 }
 
@@ -195,6 +198,109 @@ TEST_F(Plots, DirectoryThatCannotBeMadeIsBadInput) {
     EXPECT_EQ(e.code(), ExitCode::kBadInput);
     EXPECT_EQ(std::string(e.what()).rfind("--plots " + bad + ": ", 0), 0u) << e.what();
   }
+}
+
+// The same class in two phases is two points: the roofline must not merge
+// a prefill GEMM (high intensity) with a decode one (low intensity).
+TEST_F(Plots, RooflineHasOnePointPerPhaseAndClass) {
+  RunResult run = SmallRun();
+  OpResult prefill_ffn =
+      Layer(OpKind::kGemm, TensorClass::kFfn, 2 * 64 * 2048 * 5632, 3 << 20, 90000);
+  prefill_ffn.op.phase = Phase::kPrefill;
+  run.layers.insert(run.layers.begin(), prefill_ffn);
+  const std::vector<OpClassPoint> classes = GroupOpClasses(run);
+  int ffn_points = 0;
+  for (const OpClassPoint& c : classes) ffn_points += c.label == "gemm ffn";
+  EXPECT_EQ(ffn_points, 2);
+  EXPECT_EQ(classes[0].phase, Phase::kPrefill);
+  EXPECT_EQ(classes[0].ops, prefill_ffn.ops);
+}
+
+TEST_F(Plots, StallsDataHasOneRowPerPhaseInPercentAndCycles) {
+  WritePlots();
+  const std::vector<std::string> rows = DataRows(dir_ / "stalls.dat");
+  // index 0 (percent) and index 1 (cycles), each a prefill and a decode row:
+  // busy dram_wait sram_conflict vector_wait idle.
+  ASSERT_EQ(rows.size(), 4u);
+  EXPECT_EQ(rows[0].rfind("\"prefill\" ", 0), 0u) << rows[0];
+  EXPECT_EQ(rows[2], "\"prefill\" 400000 1000000 10000 40000 50000");
+  EXPECT_EQ(rows[3], "\"decode\" 200000 1200000 0 0 0");
+  // 200000 of 1400000 decode cycles busy: 14.2857 %.
+  EXPECT_EQ(rows[1].rfind("\"decode\" 14.2857 85.7143 0 0 0", 0), 0u) << rows[1];
+}
+
+// Every ceiling that applies is its own labelled line, in both phase panels.
+TEST_F(Plots, RooflineDrawsEveryCeilingInEachPhasePanel) {
+  RunResult run = SmallRun();
+  run.layers[0].op.phase = Phase::kPrefill;
+  run.vector_peak_ops_per_second = 256e9;
+  run.concurrency_bytes_per_second = 12e9;  // below the 25.6 GB/s: drawn
+  run.decoder_bytes_per_second = 64e9;
+  WriteRunPlots(dir_.string(), run, SmallEnergy());
+  const std::string gp = ReadFile(dir_ / "roofline.gp");
+  EXPECT_NE(gp.find("set multiplot layout 1,2"), std::string::npos);
+  for (const std::string label :
+       {"\"tree array: 8.19 Tops/s\"", "\"vector unit: 256 Gops/s\"",
+        "\"DRAM bandwidth: 25.6 GB/s\"", "\"request concurrency (Little's law): 12 GB/s\"",
+        "\"trit decoder (if every byte is a weight): 64 GB/s\""}) {
+    size_t count = 0;
+    for (size_t at = gp.find(label); at != std::string::npos; at = gp.find(label, at + 1)) ++count;
+    EXPECT_EQ(count, 2u) << label << " in each of the two panels";
+  }
+  // Concurrency above DRAM bandwidth is no ceiling: not drawn.
+  run.concurrency_bytes_per_second = 30e9;
+  WriteRunPlots(dir_.string(), run, SmallEnergy());
+  EXPECT_EQ(ReadFile(dir_ / "roofline.gp").find("request concurrency"), std::string::npos);
+}
+
+// A class's marker comes from a fixed table, not from the order in which
+// classes appear, so two runs draw "gemm ffn" alike.
+TEST(PlotStyle, OpClassMarkersAreFixedAndDistinct) {
+  const std::vector<std::string> classes = {
+      "gemm attention", "gemm ffn", "gemm head",   "gemm embedding", "gemm",
+      "embed",          "norm",     "quantize",    "rope",           "kv_append",
+      "attn_scores",    "softmax",  "attn_values", "activation",     "residual"};
+  std::set<std::pair<std::string, int>> seen;
+  for (const std::string& c : classes) {
+    const PlotStyle st = OpClassStyle(c);
+    EXPECT_NE(st.colour, OpClassStyle("no such class").colour) << c;
+    EXPECT_TRUE(seen.insert({st.colour, st.point_type}).second) << c << " shares a marker";
+  }
+  EXPECT_EQ(OpClassStyle("gemm ffn").colour, OpClassStyle("gemm ffn").colour);
+}
+
+TEST(PlotStyle, SeriesNeverRepeatWithinAPlot) {
+  std::set<std::tuple<std::string, int, int>> seen;
+  for (size_t i = 0; i < kPaletteSize * kDashTypes; ++i) {
+    const PlotStyle st = SeriesStyle(i);
+    EXPECT_TRUE(seen.insert({st.colour, st.point_type, st.dash_type}).second) << "series " << i;
+  }
+  std::set<std::string> colours;
+  for (size_t i = 0; i < kPaletteSize; ++i) colours.insert(SeriesStyle(i).colour);
+  EXPECT_EQ(colours.size(), kPaletteSize);
+}
+
+TEST(PlotStyle, PowersOfTwoGetALogTwoAxis) {
+  EXPECT_EQ(ScaleFor({32, 64, 128, 256}), AxisScale::kLog2);            // trees
+  EXPECT_EQ(ScaleFor({256, 512, 1024, 2048, 4096}), AxisScale::kLog2);  // KiB
+  EXPECT_EQ(ScaleFor({1, 2}), AxisScale::kLinear);                      // too narrow a span
+  EXPECT_EQ(ScaleFor({100, 300, 3000}), AxisScale::kLog10);             // not powers of two
+  EXPECT_EQ(ScaleFor({0, 1, 2, 4, 8}), AxisScale::kLinear);             // zero has no log
+  EXPECT_EQ(ScaleFor({1.5, 3, 6}), AxisScale::kLinear);
+  const std::string lines = GnuplotScale("x", AxisScale::kLog2, {32, 64, 32});
+  EXPECT_NE(lines.find("set logscale x 2"), std::string::npos) << lines;
+  EXPECT_NE(lines.find("set xtics (\"32\" 32, \"64\" 64)"), std::string::npos) << lines;
+}
+
+TEST(PlotStyle, AxisWordsCarryUnitsAndScale) {
+  const AxisWords energy = WordsFor("joules_per_token");
+  EXPECT_EQ(AxisTitle(energy), "energy per token (mJ)");
+  EXPECT_EQ(energy.scale, 1e3);  // 1 J = 1000 mJ (SI)
+  EXPECT_EQ(AxisTitle(WordsFor("arch.sram.capacity_kib")), "scratchpad (KiB)");
+  EXPECT_EQ(AxisTitle(WordsFor("arch.array.trees")), "adder trees");
+  EXPECT_EQ(ValueWords("arch.array.trees", "128"), "128 trees");
+  EXPECT_EQ(ValueWords("workload.batch", "16"), "batch 16");
+  EXPECT_EQ(AxisTitle(WordsFor("some_new_column")), "some_new_column");
 }
 
 TEST_F(Plots, OpClassLabels) {

@@ -13,6 +13,7 @@
 #include "model/trace_builder.h"
 #include "run/simulation.h"
 #include "run/vector_trace.h"
+#include "trace/trace_format.h"
 
 namespace tritsim {
 namespace {
@@ -24,6 +25,22 @@ uint64_t CeilDiv(uint64_t a, uint64_t b) { return (a + b - 1) / b; }
 
 void ExpectStallsSumToTotal(const RunResult& run) {
   EXPECT_EQ(run.stalls.total(), run.cycles) << "stall causes must cover every cycle exactly";
+  // Per phase too, and the phases' causes add up to the run's.
+  StallBreakdown sum;
+  for (const PhaseResult& p : run.phases) {
+    EXPECT_EQ(p.stalls.total(), p.cycles) << PhaseName(p.phase);
+    sum.busy += p.stalls.busy;
+    sum.dram_wait += p.stalls.dram_wait;
+    sum.sram_conflict += p.stalls.sram_conflict;
+    sum.vector_wait += p.stalls.vector_wait;
+    sum.idle += p.stalls.idle;
+  }
+  if (run.phases.empty()) return;
+  EXPECT_EQ(sum.busy, run.stalls.busy);
+  EXPECT_EQ(sum.dram_wait, run.stalls.dram_wait);
+  EXPECT_EQ(sum.sram_conflict, run.stalls.sram_conflict);
+  EXPECT_EQ(sum.vector_wait, run.stalls.vector_wait);
+  EXPECT_EQ(sum.idle, run.stalls.idle);
 }
 
 // Roofline (Williams, Waterman, Patterson, CACM 2009): an op cannot beat

@@ -75,6 +75,23 @@ for f in front joules_per_token-by-arch.array.trees; do
   fi
 done
 ls "$W/plots" | grep -q tmp && fail "temporary plot files left behind"
+# Plots that explain: each front point labelled with its id, a table of the
+# front with axis values in words and both objectives (joules shown in mJ:
+# 3 J = 3000 mJ), axis titles in words with units, not column names.
+grep -q '>p2<' "$W/plots/front.svg" || fail "front point p2 is not labelled"
+grep -q '>p2  3 trees: 80; 3000<' "$W/plots/front.svg" || fail "front table lacks p2's row"
+grep -q '>energy per token (mJ), lower is better<' "$W/plots/front.svg" || fail "front y label"
+grep -q '>adder trees<' "$W/plots/joules_per_token-by-arch.array.trees.svg" || fail "axis x label"
+grep -q '>energy per token (mJ)<' "$W/plots/joules_per_token-by-arch.array.trees.svg" ||
+  fail "axis y label"
+# Powers of two spanning 4x or more: a log-2 axis with a tic at each value.
+# hand.csv with trees 1, 2, 4, 8 (p3, failed), 16, 32:
+awk -F, -v OFS=, 'NR > 1 { $2 = 2 ^ (NR - 2) } { print }' "$W/hand.csv" > "$W/pow2.csv"
+"$TRITSIM" sweep "$W/pow2.csv" --plots "$W/pow2" --metric joules_per_token -q
+grep -q '^set logscale x 2$' "$W/pow2/joules_per_token-by-arch.array.trees.gp" ||
+  fail "trees 1..32 not on a log-2 axis"
+grep -q '^set xtics ("1" 1, "2" 2, "4" 4, "16" 16, "32" 32)' \
+  "$W/pow2/joules_per_token-by-arch.array.trees.gp" || fail "log-2 axis lacks a tic per value"
 
 # Slurm scripts: readable files with the shard command and the dependency.
 "$TRITSIM" sweep "$S" --slurm "$W/slurm" --tasks 3 --partition debug --time-limit 00:10:00 \
