@@ -9,6 +9,7 @@
 
 #include "common/csv.h"
 #include "report/gnuplot.h"
+#include "report/plot_style.h"
 
 namespace tritsim {
 namespace {
@@ -54,13 +55,25 @@ void PrintDistribution(const char* name, const Distribution& d, std::ostream& ou
                      Time(d.mean), Time(d.p50), Time(d.p90), Time(d.p99));
 }
 
-// One gnuplot script header: output file and terminal, as the run plots do.
+// The shared script header (terminal, output file), a key to the right and
+// a grid. Series colours are written as placeholders and replaced by the
+// shared palette (SeriesStyle) in Render.
 std::string Header(const std::string& name, const std::string& what) {
-  return "# " + what + "\n# Written by tritsim serve; reads " + name +
-         ".dat from this directory. Redraw with: gnuplot " + name + ".gp\n" +
-         "if (!exists(\"outfile\")) outfile = \"" + name +
-         ".svg\"\nset terminal svg size 900,520 noenhanced font \"sans,12\" background "
-         "\"white\"\nset output outfile\nset key outside right top\nset grid\n";
+  return GnuplotHeader(name, what, "tritsim serve", 900, 520) +
+         "set key outside right top\nset grid\n";
+}
+
+void Render(const std::string& dir, const std::string& name, const std::string& data,
+            std::string script) {
+  const char* placeholders[] = {"#1b6ca8", "#c8553d", "#3f7d20"};
+  for (size_t i = 0; i < 3; ++i) {
+    const std::string colour = SeriesStyle(i).colour;
+    for (size_t at = script.find(placeholders[i]); at != std::string::npos;
+         at = script.find(placeholders[i], at + colour.size())) {
+      script.replace(at, 7, colour);
+    }
+  }
+  RenderGnuplot(dir, name, data, script);
 }
 
 void OccupancyPlot(const std::string& dir, const ServeReport& r) {
@@ -86,9 +99,10 @@ void OccupancyPlot(const std::string& dir, const ServeReport& r) {
           "\"KV "
           "cache (capacity {:.0f} MiB)\"\n",
           r.arch_name, r.model_name, r.policy.max_batch + 1,
-          std::max(r.policy.kv_capacity_bytes / mib, 1e-9), r.policy.max_batch,
-          r.policy.kv_capacity_bytes / mib);
-  RenderGnuplot(dir, "occupancy", data.str(), script);
+          std::max(std::min(r.policy.kv_capacity_bytes, 1.25 * r.outcome.kv_peak_bytes) / mib,
+                   1e-9),
+          r.policy.max_batch, r.policy.kv_capacity_bytes / mib);
+  Render(dir, "occupancy", data.str(), script);
 }
 
 // Empirical distribution functions of the three latencies, in milliseconds.
@@ -125,7 +139,7 @@ void LatencyPlot(const std::string& dir, const ServeReport& r) {
           "     \"latency.dat\" index 2 using 1:2 with steps lw 2 lc rgb \"#3f7d20\" title "
           "\"end-to-end\"\n",
           r.arch_name, r.model_name);
-  RenderGnuplot(dir, "latency", data.str(), script);
+  Render(dir, "latency", data.str(), script);
 }
 
 void LoadPlot(const std::string& dir, const ServeReport& r) {
@@ -160,7 +174,7 @@ void LoadPlot(const std::string& dir, const ServeReport& r) {
           "     \"load.dat\" using 2:4 with linespoints lw 2 pt 5 lc rgb \"#c8553d\" "
           "title \"p99 time per output token\"\n",
           r.arch_name, r.model_name, slo);
-  RenderGnuplot(dir, "load", data.str(), script);
+  Render(dir, "load", data.str(), script);
 }
 
 }  // namespace
