@@ -302,9 +302,10 @@ void PrintServe(const ServeReport& r, std::ostream& out) {
   if (r.searched_max_rate) {
     if (r.found_max_rate) {
       out << fmt::format(
-          "  serving capacity {:.4g} requests/s with p99 TTFT and TPOT within the SLO, {:.4g} J "
-          "per request\n",
-          r.max_rate.rate, r.max_rate.summary.joules_per_request);
+          "  serving capacity {:.4g} requests/s offered ({:.4g} served) with p99 TTFT and TPOT "
+          "within the SLO, {:.4g} J per request\n",
+          r.max_rate.rate, r.max_rate.summary.throughput_requests_per_second,
+          r.max_rate.summary.joules_per_request);
     } else {
       out << "  serving capacity none: even the lowest rate tried misses the SLO\n";
     }

@@ -231,6 +231,30 @@ TEST(ServeSchedule, PrefillFirstRunsAdmittedPromptsAloneThenDecodesEverySequence
   EXPECT_EQ(cost.shapes[2].sequences, (std::vector<SequenceSpan>{{1, 6}}));
 }
 
+// Prefill-first with a prompt budget: admitted prompts run alone in steps of
+// at most the budget, in admission order; one longer prompt runs by itself.
+TEST(ServeSchedule, PrefillFirstKeepsThePromptBudgetInAdmissionOrder) {
+  class Recorder : public StepCostModel {
+   public:
+    StepCost Cost(const StepShape& step) override {
+      shapes.push_back(step);
+      return StepCost{0.01, 0};
+    }
+    double IdleWatts() const override { return 0; }
+    std::vector<StepShape> shapes;
+  } cost;
+  std::vector<Request> requests = {
+      {0, 0.0, 300, 2}, {1, 0.0, 300, 2}, {2, 0.0, 900, 2}, {3, 0.0, 100, 2}};
+  ServePolicy p = OneAtATime();
+  p.max_batch = 4;
+  p.prefill_tokens = 700;
+  Serve(requests, p, cost);
+  ASSERT_GE(cost.shapes.size(), 3u);
+  EXPECT_EQ(cost.shapes[0].sequences, (std::vector<SequenceSpan>{{300, 0}, {300, 0}}));
+  EXPECT_EQ(cost.shapes[1].sequences, (std::vector<SequenceSpan>{{900, 0}}));  // alone
+  EXPECT_EQ(cost.shapes[2].sequences, (std::vector<SequenceSpan>{{100, 0}}));
+}
+
 TEST(ServeRequests, GeneratedStreamsAreReproducibleWithPoissonGaps) {
   const auto a = Poisson(4.0, 100000, 1, 1, 99);
   const auto b = Poisson(4.0, 100000, 1, 1, 99);
