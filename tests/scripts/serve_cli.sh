@@ -41,6 +41,19 @@ if s["latency"]["queue_seconds"]["p99"] != 0:
 sys.exit(0 if ok else 1)
 PY
 
+# The JSON Schema of the serve output (docs/schemas/serve.schema.json),
+# checked with Debian's python3-jsonschema; a corrupted copy is rejected.
+V="$SRC/tests/scripts/lib/validate_json.py"
+/usr/bin/python3 "$V" docs/schemas/serve.schema.json "$OUT/idle.json" || fail "serve JSON schema"
+/usr/bin/python3 - "$OUT/idle.json" "$OUT/corrupt.json" <<'PY'
+import json, sys
+j = json.load(open(sys.argv[1]))
+j["latency"]["ttft_seconds"].pop("p99")
+json.dump(j, open(sys.argv[2], "w"))
+PY
+/usr/bin/python3 "$V" --invalid docs/schemas/serve.schema.json "$OUT/corrupt.json" >/dev/null ||
+  fail "the serve schema accepts a JSON without latency.ttft_seconds.p99"
+
 # 2. KV capacity binds: 0.12 GiB of DRAM leaves room for about 4500 KV tokens
 # beside wren's weights cut to 4 blocks (4 KiB of KV cache per token), so of
 # 24 requests of 300 + 100 tokens about 11 run at once, not 24; a request of
@@ -73,14 +86,15 @@ for n in a b; do
     --output-tokens uniform:4:24 --schedule chunked --chunk-tokens 64 --validate-steps 2 \
     --json "$OUT/det-$n.json" >/dev/null 2>&1 || fail "serve chunked $n"
 done
-[ "$sanitized" -eq 1 ] || /usr/bin/python3 - "$OUT/det-a.json" "$OUT/det-b.json" <<'PY' ||
-  fail "two identical serve runs differ"
+same=0
+[ "$sanitized" -eq 1 ] || /usr/bin/python3 - "$OUT/det-a.json" "$OUT/det-b.json" <<'PY' || same=1
 import json, sys
 a, b = (json.load(open(p)) for p in sys.argv[1:3])
 for j in (a, b):
     j["provenance"].pop("command")  # names the two --json paths
 sys.exit(0 if a == b else 1)
 PY
+[ "$same" -eq 0 ] || fail "two identical serve runs differ"
 
 # 4. Bad input.
 expect_bad() {  # code text args...
