@@ -223,15 +223,22 @@ void Sequencer::RetireOp(OpInFlight& op) {
   AddEvents(op.events, result.events);
   RecordBounds(op, result);
   total_ops_ += op.ops;
-  if (op.phase == Phase::kPrefill) prefill_end_ps_ = now;
+  if (op.phase == Phase::kPrefill) {
+    // Every cycle up to `now` is charged (Charge above), so this snapshot
+    // sums to the prefill phase's cycles.
+    prefill_end_ps_ = now;
+    prefill_stalls_ = stalls_;
+  }
   if (op.phase == Phase::kDecode && op.step == 0) first_decode_end_ps_ = now;
   ops_in_flight_.pop_front();
   ++ops_retired_;
   op_retired_.notify(sc_core::SC_ZERO_TIME);
 }
 
-PhaseResult Sequencer::MakePhase(Phase phase, uint64_t cycles, uint64_t tokens) const {
+PhaseResult Sequencer::MakePhase(Phase phase, uint64_t cycles, uint64_t tokens,
+                                 const StallBreakdown& stalls) const {
   PhaseResult p;
+  p.stalls = stalls;
   p.phase = phase;
   p.cycles = cycles;
   p.tokens = tokens;
@@ -249,11 +256,14 @@ void Sequencer::Collect(RunResult& result) const {
   result.stalls = stalls_;
   result.layers = layers_;
   const uint64_t prefill_cycles = saw_prefill_ ? prefill_end_ps_ / period_ps_ : 0;
-  if (saw_prefill_)
-    result.phases.push_back(MakePhase(Phase::kPrefill, prefill_cycles, prefill_tokens_));
-  if (decode_steps_ > 0) {
+  const StallBreakdown before_decode = saw_prefill_ ? prefill_stalls_ : StallBreakdown{};
+  if (saw_prefill_) {
     result.phases.push_back(
-        MakePhase(Phase::kDecode, result.cycles - prefill_cycles, decode_tokens_));
+        MakePhase(Phase::kPrefill, prefill_cycles, prefill_tokens_, prefill_stalls_));
+  }
+  if (decode_steps_ > 0) {
+    result.phases.push_back(MakePhase(Phase::kDecode, result.cycles - prefill_cycles,
+                                      decode_tokens_, StallsAfter(stalls_, before_decode)));
   }
   result.tokens = decode_tokens_ > 0 ? decode_tokens_ : prefill_tokens_;
   const uint64_t first_ps = saw_prefill_ ? prefill_end_ps_ : first_decode_end_ps_;

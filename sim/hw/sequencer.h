@@ -85,7 +85,8 @@ class Sequencer : public sc_core::sc_module {
   void AddDemand(const WorkItem& item, const TileRun& run, const EventCounts& transfers,
                  ResourceDemand& demand) const;
   void RecordBounds(const OpInFlight& op, OpResult& result);
-  PhaseResult MakePhase(Phase phase, uint64_t cycles, uint64_t tokens) const;
+  PhaseResult MakePhase(Phase phase, uint64_t cycles, uint64_t tokens,
+                        const StallBreakdown& stalls) const;
   void Charge(uint64_t& bucket);
   void AlignToCycle();
   size_t ResultIndex(const TraceOp& op);
@@ -117,6 +118,7 @@ class Sequencer : public sc_core::sc_module {
   // Accounting on the compute timeline.
   uint64_t mark_ps_ = 0;
   StallBreakdown stalls_;
+  StallBreakdown prefill_stalls_;  // stalls_ when the last prefill op retired
   uint64_t end_ps_ = 0;
   bool saw_prefill_ = false;
   uint64_t prefill_end_ps_ = 0;

@@ -22,6 +22,13 @@ struct StallBreakdown {
   uint64_t total() const { return busy + dram_wait + sram_conflict + vector_wait + idle; }
 };
 
+// `whole` minus `part`, cause by cause (`part` is a prefix of `whole`'s run).
+inline StallBreakdown StallsAfter(const StallBreakdown& whole, const StallBreakdown& part) {
+  return {whole.busy - part.busy, whole.dram_wait - part.dram_wait,
+          whole.sram_conflict - part.sram_conflict, whole.vector_wait - part.vector_wait,
+          whole.idle - part.idle};
+}
+
 // Events that cost energy, counted by the units that cause them.
 struct EventCounts {
   uint64_t weight_uses = 0;         // activation x weight products in the array (= K*N*M per GEMM)
@@ -154,6 +161,7 @@ struct PhaseResult {
   ResourceDemand demand;  // of every op of the phase
   Resource bound_by = Resource::kDramBandwidth;
   uint64_t bound_cycles = 0;  // the binding resource's cycles for `demand`
+  StallBreakdown stalls;      // the phase's core cycles by cause; sums to `cycles`
 };
 
 struct RunResult {

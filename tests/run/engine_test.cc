@@ -13,6 +13,7 @@
 #include "model/trace_builder.h"
 #include "run/simulation.h"
 #include "run/vector_trace.h"
+#include "trace/trace_format.h"
 
 namespace tritsim {
 namespace {
@@ -24,6 +25,10 @@ uint64_t CeilDiv(uint64_t a, uint64_t b) { return (a + b - 1) / b; }
 
 void ExpectStallsSumToTotal(const RunResult& run) {
   EXPECT_EQ(run.stalls.total(), run.cycles) << "stall causes must cover every cycle exactly";
+  // And each phase's own split covers exactly that phase's cycles.
+  for (const PhaseResult& p : run.phases) {
+    EXPECT_EQ(p.stalls.total(), p.cycles) << PhaseName(p.phase);
+  }
 }
 
 // Roofline (Williams, Waterman, Patterson, CACM 2009): an op cannot beat
