@@ -18,6 +18,7 @@ int SweepCommand(const Args& args);
 int DatapathCommand(const Args& args);  // cli/datapath_command.cc
 int CompareCommand(const Args& args);   // cli/compare_command.cc
 int DiffCommand(const Args& args);      // cli/diff_command.cc
+int ReportCommand(const Args& args);    // cli/report_command.cc
 
 // Overall usage text (subcommands), for `tritsim --help`.
 std::string MainUsage();

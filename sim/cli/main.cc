@@ -25,7 +25,7 @@ const std::map<std::string, Command>& Commands() {
       {"inspect", tritsim::InspectCommand},   {"trace", tritsim::TraceCommand},
       {"run", tritsim::RunCommand},           {"sweep", tritsim::SweepCommand},
       {"datapath", tritsim::DatapathCommand}, {"compare", tritsim::CompareCommand},
-      {"diff", tritsim::DiffCommand},
+      {"diff", tritsim::DiffCommand},         {"report", tritsim::ReportCommand},
   };
   return commands;
 }
