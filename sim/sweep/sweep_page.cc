@@ -62,6 +62,9 @@ class Sweep {
     for (size_t r = 0; r < t.rows.size(); ++r) {
       if (Cell(r, "status") == kStatusOk) ok_.push_back(r);
     }
+    for (const std::string& axis : axes_) {
+      if (Values(axis).size() > 1) varying_.push_back(axis);
+    }
   }
   bool Has(const std::string& column) const { return index_.count(column) > 0; }
   std::string Cell(size_t row, const std::string& column) const {
@@ -77,10 +80,12 @@ class Sweep {
   size_t rows() const { return table_.rows.size(); }
   const CsvTable& table() const { return table_; }
 
-  // "trees=128, batch=4": the row's axis values, short key names.
+  // The axes with more than one value among the ok rows.
+  const std::vector<std::string>& varying() const { return varying_; }
+  // "trees=128, batch=4": the row's values of the varying axes, short key names.
   std::string Settings(size_t row, const std::string& skip = "") const {
     std::string s;
-    for (const std::string& axis : axes_) {
+    for (const std::string& axis : varying_) {
       if (axis == skip) continue;
       const std::string value = Cell(row, axis);
       s += (s.empty() ? "" : ", ") + axis.substr(axis.rfind('.') + 1) + "=" +
@@ -102,6 +107,7 @@ class Sweep {
   const CsvTable& table_;
   std::map<std::string, size_t> index_;
   std::vector<std::string> axes_;
+  std::vector<std::string> varying_;
   std::vector<size_t> ok_;
 };
 
@@ -283,7 +289,7 @@ std::string AxisPlot(const Sweep& sweep, const std::string& axis, const std::str
   std::stable_sort(series_names.begin(), series_names.end(),
                    [&](const std::string& a, const std::string& b) {
                      const size_t ra = series[a].front().second, rb = series[b].front().second;
-                     for (const std::string& other : sweep.axes()) {
+                     for (const std::string& other : sweep.varying()) {
                        if (other == axis) continue;
                        const std::string va = sweep.Cell(ra, other), vb = sweep.Cell(rb, other);
                        double na = 0, nb = 0;
@@ -323,7 +329,7 @@ std::string AxisPlots(const Sweep& sweep) {
   std::string s =
       "<h2>Metrics by axis</h2>\n<p class=\"note\">One line per combination of "
       "the other axes; hover a marker for its point id.</p>\n";
-  for (const std::string& axis : sweep.axes()) {
+  for (const std::string& axis : sweep.varying()) {
     for (const char* metric : {"tokens_per_second", "joules_per_token"}) {
       if (sweep.Has(metric)) s += AxisPlot(sweep, axis, metric);
     }
