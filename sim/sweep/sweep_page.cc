@@ -5,7 +5,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdlib>
 #include <map>
 #include <set>
 
@@ -40,13 +39,6 @@ const std::vector<std::string>& TableMetrics() {
   return kMetrics;
 }
 
-bool ParseNumber(const std::string& text, double& out) {
-  if (text.empty()) return false;
-  char* end = nullptr;
-  out = std::strtod(text.c_str(), &end);
-  return end == text.c_str() + text.size() && std::isfinite(out);
-}
-
 bool IsPowerOfTwo(double v) {
   if (!(v >= 1) || v != std::floor(v) || v > 9.007199254740992e15) return false;
   const auto n = uint64_t(v);
@@ -73,7 +65,7 @@ class Sweep {
   }
   double Number(size_t row, const std::string& column) const {
     double v = NAN;
-    return ParseNumber(Cell(row, column), v) ? v : NAN;
+    return ParseCsvNumber(Cell(row, column), v) ? v : NAN;
   }
   const std::vector<std::string>& axes() const { return axes_; }
   const std::vector<size_t>& ok() const { return ok_; }
@@ -146,7 +138,7 @@ AxisPlacement PlaceAxis(const Sweep& sweep, const std::string& column) {
   bool numeric = true, powers = true;
   for (const std::string& v : values) {
     double x = 0;
-    numeric = numeric && ParseNumber(v, x);
+    numeric = numeric && ParseCsvNumber(v, x);
     numbers.push_back(x);
     powers = powers && numeric && IsPowerOfTwo(x);
   }
@@ -293,7 +285,7 @@ std::string AxisPlot(const Sweep& sweep, const std::string& axis, const std::str
                        if (other == axis) continue;
                        const std::string va = sweep.Cell(ra, other), vb = sweep.Cell(rb, other);
                        double na = 0, nb = 0;
-                       if (ParseNumber(va, na) && ParseNumber(vb, nb)) {
+                       if (ParseCsvNumber(va, na) && ParseCsvNumber(vb, nb)) {
                          if (na != nb) return na < nb;
                        } else if (va != vb) {
                          return va < vb;
@@ -362,9 +354,9 @@ std::string PointTable(const Sweep& sweep) {
       double v = 0;
       const bool metric =
           std::find(TableMetrics().begin(), TableMetrics().end(), k) != TableMetrics().end();
-      if (metric && ParseNumber(text, v)) {
+      if (metric && ParseCsvNumber(text, v)) {
         row.push_back(NumberCell(SiText(v), v));
-      } else if (ParseNumber(text, v)) {
+      } else if (ParseCsvNumber(text, v)) {
         row.push_back(NumberCell(text, v));
       } else {
         row.push_back({text, text, ""});
