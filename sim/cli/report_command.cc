@@ -38,14 +38,12 @@ constexpr const char* kPageName = "index.html";
 
 // The first byte that is not white space, or 0 for an empty file.
 char FirstByte(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) {
-    std::error_code ec;
-    const bool is_dir = std::filesystem::is_directory(path, ec);
-    throw InputError(path, 0, "",
-                     is_dir ? "is a folder, not a run JSON or sweep CSV"
-                            : "cannot open (expected a run JSON or a sweep CSV)");
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec)) {
+    throw InputError(path, 0, "", "is a folder, not a run JSON or a sweep CSV");
   }
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(path, 0, "", "cannot open (expected a run JSON or a sweep CSV)");
   char c = 0;
   while (in.get(c)) {
     if (c != ' ' && c != '\t' && c != '\r' && c != '\n') return c;

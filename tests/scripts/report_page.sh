@@ -108,6 +108,9 @@ grep -q "tritsim.run/1" "$tmp/err" || fail "an inspect JSON: $(cat "$tmp/err")"
 expect_exit 3 "a run JSON without phases" "$BIN" report nophases.json --out out4
 one_line_error "a run JSON without phases"
 grep -q "nophases.json: phases" "$tmp/err" || fail "a run JSON without phases: $(cat "$tmp/err")"
+expect_exit 3 "a folder as input" "$BIN" report "$tmp/sw" --out out5
+one_line_error "a folder as input"
+grep -q "is a folder" "$tmp/err" || fail "a folder as input: $(cat "$tmp/err")"
 expect_exit 3 "--out under a missing folder" "$BIN" report "$GOLDEN" --out no/such/dir
 one_line_error "--out under a missing folder"
 mkdir keep && echo old >keep/index.html
