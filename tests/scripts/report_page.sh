@@ -33,7 +33,9 @@ render() {
   local page=$1 name=$2 fragment=${3:-}
   local profile
   profile=$(mktemp -d "$tmp/profile-XXXXXX")
-  timeout 120 "$CHROMIUM" --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
+  # Its own HOME too: CI may run without one, and nothing leaks between runs.
+  mkdir -p "$tmp/home"
+  HOME="$tmp/home" timeout 120 "$CHROMIUM" --headless --no-sandbox --disable-gpu --disable-quic --no-first-run \
     --disable-background-networking --disable-component-update --disable-sync \
     --host-resolver-rules="MAP * ~NOTFOUND" --hide-scrollbars \
     --user-data-dir="$profile" --enable-logging=stderr --v=0 \
