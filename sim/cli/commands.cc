@@ -56,6 +56,7 @@ std::string MainUsage() {
          "  compare   run a study's named variants side by side against a reference\n"
          "  diff      compare two run reports: totals, phases, op classes, config\n"
          "  serve     serve a stream of requests: latency, throughput, SLOs, capacity\n"
+         "  report    write the HTML report page of a run JSON or a sweep CSV\n"
          "  datapath  check the bit-exact datapath (packing, adder trees, accumulator)\n"
          "\n"
          "Results are model estimates for architecture exploration, not sign-off numbers.\n";

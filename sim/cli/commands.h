@@ -19,6 +19,7 @@ int DatapathCommand(const Args& args);  // cli/datapath_command.cc
 int CompareCommand(const Args& args);   // cli/compare_command.cc
 int DiffCommand(const Args& args);      // cli/diff_command.cc
 int ServeCommand(const Args& args);     // cli/serve_command.cc
+int ReportCommand(const Args& args);    // cli/report_command.cc
 
 // Overall usage text (subcommands), for `tritsim --help`.
 std::string MainUsage();

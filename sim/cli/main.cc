@@ -26,6 +26,7 @@ const std::map<std::string, Command>& Commands() {
       {"run", tritsim::RunCommand},           {"sweep", tritsim::SweepCommand},
       {"datapath", tritsim::DatapathCommand}, {"compare", tritsim::CompareCommand},
       {"diff", tritsim::DiffCommand},         {"serve", tritsim::ServeCommand},
+      {"report", tritsim::ReportCommand},
   };
   return commands;
 }

@@ -128,15 +128,10 @@ void Sequencer::AlignToCycle() {
   if (rem) wait(sc_time::from_value(period_ps_ - rem));
 }
 
-void Sequencer::Charge(uint64_t StallBreakdown::*cause) {
+void Sequencer::Charge(uint64_t& bucket) {
   const uint64_t now = NowPs();
-  AddStall(cause, (now - mark_ps_) / period_ps_);
+  bucket += (now - mark_ps_) / period_ps_;
   mark_ps_ = now;
-}
-
-void Sequencer::AddStall(uint64_t StallBreakdown::*cause, uint64_t cycles) {
-  stalls_.*cause += cycles;
-  phase_stalls_[int(current_phase_)].*cause += cycles;
 }
 
 void Sequencer::ComputeThread() {
@@ -146,8 +141,7 @@ void Sequencer::ComputeThread() {
       while (loaded_.empty() && !trace_done_) wait(item_loaded_);
       if (loaded_.empty()) break;
       AlignToCycle();
-      current_phase_ = ops_in_flight_.front().phase;  // the op of loaded_.front()
-      Charge(&StallBreakdown::dram_wait);
+      Charge(stalls_.dram_wait);
       const WorkItem item = loaded_.front();
       loaded_.pop_front();
       RunItem(item);
@@ -155,7 +149,7 @@ void Sequencer::ComputeThread() {
     compute_state_ = "outstanding stores";
     dma_.WaitStoresDone();
     AlignToCycle();
-    Charge(&StallBreakdown::idle);
+    Charge(stalls_.idle);
     end_ps_ = NowPs();
     finished_ = true;
     compute_state_ = "done";
@@ -173,10 +167,10 @@ void Sequencer::RunItem(const WorkItem& item) {
   const TileRun run = on_array ? tree_array_.Execute(item) : vector_unit_.Execute(item);
   const uint64_t now = NowPs();
   if (on_array) {
-    AddStall(&StallBreakdown::busy, run.cost.cycles);
-    AddStall(&StallBreakdown::sram_conflict, run.conflict_cycles);
+    stalls_.busy += run.cost.cycles;
+    stalls_.sram_conflict += run.conflict_cycles;
   } else {
-    AddStall(&StallBreakdown::vector_wait, run.cost.cycles + run.conflict_cycles);
+    stalls_.vector_wait += run.cost.cycles + run.conflict_cycles;
   }
   mark_ps_ = now;
   if (StreamedBytes(item) > 0) {
@@ -218,7 +212,7 @@ void Sequencer::RetireOp(OpInFlight& op) {
   compute_state_ = "stores of the retiring op";
   dma_.WaitStoresDone();
   AlignToCycle();
-  Charge(&StallBreakdown::dram_wait);
+  Charge(stalls_.dram_wait);
   const uint64_t now = NowPs();
   OpResult& result = layers_[op.result_index];
   const uint64_t span_cycles = (now - op.span_start_ps + period_ps_ - 1) / period_ps_;
@@ -229,20 +223,26 @@ void Sequencer::RetireOp(OpInFlight& op) {
   AddEvents(op.events, result.events);
   RecordBounds(op, result);
   total_ops_ += op.ops;
-  if (op.phase == Phase::kPrefill) prefill_end_ps_ = now;
+  if (op.phase == Phase::kPrefill) {
+    // Every cycle up to `now` is charged (Charge above), so this snapshot
+    // sums to the prefill phase's cycles.
+    prefill_end_ps_ = now;
+    prefill_stalls_ = stalls_;
+  }
   if (op.phase == Phase::kDecode && op.step == 0) first_decode_end_ps_ = now;
   ops_in_flight_.pop_front();
   ++ops_retired_;
   op_retired_.notify(sc_core::SC_ZERO_TIME);
 }
 
-PhaseResult Sequencer::MakePhase(Phase phase, uint64_t cycles, uint64_t tokens) const {
+PhaseResult Sequencer::MakePhase(Phase phase, uint64_t cycles, uint64_t tokens,
+                                 const StallBreakdown& stalls) const {
   PhaseResult p;
+  p.stalls = stalls;
   p.phase = phase;
   p.cycles = cycles;
   p.tokens = tokens;
   p.demand = phase_demand_[int(phase)];
-  p.stalls = phase_stalls_[int(phase)];
   const ResourceBounds bounds = BoundsOf(p.demand, resource_rates_);
   p.bound_by = bounds.binding;
   p.bound_cycles = uint64_t(std::ceil(bounds.max_cycles() - 1e-9));
@@ -256,11 +256,14 @@ void Sequencer::Collect(RunResult& result) const {
   result.stalls = stalls_;
   result.layers = layers_;
   const uint64_t prefill_cycles = saw_prefill_ ? prefill_end_ps_ / period_ps_ : 0;
-  if (saw_prefill_)
-    result.phases.push_back(MakePhase(Phase::kPrefill, prefill_cycles, prefill_tokens_));
-  if (decode_steps_ > 0) {
+  const StallBreakdown before_decode = saw_prefill_ ? prefill_stalls_ : StallBreakdown{};
+  if (saw_prefill_) {
     result.phases.push_back(
-        MakePhase(Phase::kDecode, result.cycles - prefill_cycles, decode_tokens_));
+        MakePhase(Phase::kPrefill, prefill_cycles, prefill_tokens_, prefill_stalls_));
+  }
+  if (decode_steps_ > 0) {
+    result.phases.push_back(MakePhase(Phase::kDecode, result.cycles - prefill_cycles,
+                                      decode_tokens_, StallsAfter(stalls_, before_decode)));
   }
   result.tokens = decode_tokens_ > 0 ? decode_tokens_ : prefill_tokens_;
   const uint64_t first_ps = saw_prefill_ ? prefill_end_ps_ : first_decode_end_ps_;

@@ -85,12 +85,9 @@ class Sequencer : public sc_core::sc_module {
   void AddDemand(const WorkItem& item, const TileRun& run, const EventCounts& transfers,
                  ResourceDemand& demand) const;
   void RecordBounds(const OpInFlight& op, OpResult& result);
-  PhaseResult MakePhase(Phase phase, uint64_t cycles, uint64_t tokens) const;
-  // Charges the cycles since the last mark to `cause`, in the run's and
-  // the current phase's breakdown.
-  void Charge(uint64_t StallBreakdown::*cause);
-  // Adds `cycles` to `cause` of both breakdowns.
-  void AddStall(uint64_t StallBreakdown::*cause, uint64_t cycles);
+  PhaseResult MakePhase(Phase phase, uint64_t cycles, uint64_t tokens,
+                        const StallBreakdown& stalls) const;
+  void Charge(uint64_t& bucket);
   void AlignToCycle();
   size_t ResultIndex(const TraceOp& op);
   void Fail(std::exception_ptr error);
@@ -121,8 +118,7 @@ class Sequencer : public sc_core::sc_module {
   // Accounting on the compute timeline.
   uint64_t mark_ps_ = 0;
   StallBreakdown stalls_;
-  StallBreakdown phase_stalls_[2];         // indexed by Phase
-  Phase current_phase_ = Phase::kPrefill;  // of the tile last taken up by the compute thread
+  StallBreakdown prefill_stalls_;  // stalls_ when the last prefill op retired
   uint64_t end_ps_ = 0;
   bool saw_prefill_ = false;
   uint64_t prefill_end_ps_ = 0;

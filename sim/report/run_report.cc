@@ -66,14 +66,42 @@ double UnattributedJoules(const RunReport& r) {
 
 }  // namespace
 
+namespace {
+
+// a += scale * b, component by component (the five summed components).
+void AddScaled(const EnergyBreakdown& b, double scale, EnergyBreakdown& a) {
+  a.arithmetic_joules += scale * b.arithmetic_joules;
+  a.sram_joules += scale * b.sram_joules;
+  a.dram_joules += scale * b.dram_joules;
+  a.decoder_joules += scale * b.decoder_joules;
+  a.leakage_joules += scale * b.leakage_joules;
+}
+
+}  // namespace
+
 PhaseFigures ComputePhaseFigures(const RunReport& r, const PhaseResult& p) {
   PhaseFigures f;
   f.seconds = Seconds(p.cycles, r.run);
   f.tokens_per_second = Ratio(double(p.tokens), f.seconds);
+  EnergyBreakdown unattributed = r.energy;  // minus every layer's own energy below
   for (const OpResult& layer : r.run.layers) {
-    if (layer.op.phase == p.phase) f.joules += LayerEnergy(r, layer).total_joules();
+    const EnergyBreakdown own = LayerEnergy(r, layer);
+    AddScaled(own, -1.0, unattributed);
+    if (layer.op.phase == p.phase) {
+      f.joules += own.total_joules();
+      AddScaled(own, 1.0, f.energy);
+    }
   }
-  f.joules += UnattributedJoules(r) * Ratio(double(p.cycles), double(r.run.cycles));
+  // The layers' events are a subset of the run's, so a component of the
+  // remainder is >= 0 but for rounding (-1e-20 J): never shown negative.
+  for (double* c :
+       {&unattributed.arithmetic_joules, &unattributed.sram_joules, &unattributed.dram_joules,
+        &unattributed.decoder_joules, &unattributed.leakage_joules}) {
+    *c = std::max(0.0, *c);
+  }
+  const double share = Ratio(double(p.cycles), double(r.run.cycles));
+  f.joules += UnattributedJoules(r) * share;
+  AddScaled(unattributed, share, f.energy);
   f.joules_per_token = Ratio(f.joules, double(p.tokens));
   f.watts = Ratio(f.joules, f.seconds);
   return f;
@@ -115,6 +143,26 @@ Headline ComputeHeadline(const RunReport& r) {
   return h;
 }
 
+namespace {
+
+nlohmann::ordered_json StallsJson(const StallBreakdown& s) {
+  return {{"busy", s.busy},
+          {"dram_wait", s.dram_wait},
+          {"sram_conflict", s.sram_conflict},
+          {"vector_wait", s.vector_wait},
+          {"idle", s.idle}};
+}
+
+nlohmann::ordered_json EnergyJson(const EnergyBreakdown& e) {
+  return {{"arithmetic", e.arithmetic_joules},
+          {"sram", e.sram_joules},
+          {"dram", e.dram_joules},
+          {"decoder", e.decoder_joules},
+          {"leakage", e.leakage_joules}};
+}
+
+}  // namespace
+
 nlohmann::ordered_json RunJson(const RunReport& r) {
   using nlohmann::ordered_json;
   const RunResult& run = r.run;
@@ -152,14 +200,12 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                       {"bound_cycles", p.bound_cycles},
                       {"joules", f.joules},
                       {"joules_per_token", f.joules_per_token},
-                      {"watts", f.watts}});
+                      {"watts", f.watts},
+                      {"stalls", StallsJson(p.stalls)},
+                      {"energy", EnergyJson(f.energy)}});
   }
   j["phases"] = phases;
-  j["stalls"] = {{"busy", run.stalls.busy},
-                 {"dram_wait", run.stalls.dram_wait},
-                 {"sram_conflict", run.stalls.sram_conflict},
-                 {"vector_wait", run.stalls.vector_wait},
-                 {"idle", run.stalls.idle}};
+  j["stalls"] = StallsJson(run.stalls);
   j["utilization"] = {{"tree_array", h.tree_utilization},
                       {"vector_unit", h.vector_utilization},
                       {"sram_ports", h.sram_port_utilization},
@@ -177,18 +223,17 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                {"row_conflicts", run.dram.row_conflicts},
                {"activates", run.dram.activates},
                {"refreshes", run.dram.refreshes}};
-  j["energy"] = {{"arithmetic", r.energy.arithmetic_joules},
-                 {"sram", r.energy.sram_joules},
-                 {"dram", r.energy.dram_joules},
-                 {"decoder", r.energy.decoder_joules},
-                 {"leakage", r.energy.leakage_joules}};
+  j["energy"] = EnergyJson(r.energy);
   j["area"] = {{"array_mm2", r.area.array_mm2}, {"vector_mm2", r.area.vector_mm2},
                {"sram_mm2", r.area.sram_mm2},   {"decoder_mm2", r.area.decoder_mm2},
                {"other_mm2", r.area.other_mm2}, {"total_mm2", r.area.total_mm2()}};
   j["arch"] = {
       {"peak_ops_per_second", run.peak_ops_per_second},
       {"dram_peak_bytes_per_second", run.dram_peak_bytes_per_second},
-      {"ridge_ops_per_byte", Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second)}};
+      {"ridge_ops_per_byte", Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second)},
+      {"vector_peak_ops_per_second", run.vector_peak_ops_per_second},
+      {"concurrency_bytes_per_second", run.concurrency_bytes_per_second},
+      {"decoder_bytes_per_second", run.decoder_bytes_per_second}};
   const EventCounts& e = run.events;
   j["events"] = {{"weight_uses", e.weight_uses},
                  {"weight_uses_zero", e.weight_uses_zero},

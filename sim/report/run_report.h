@@ -56,6 +56,11 @@ struct PhaseFigures {
   double joules = 0.0;
   double joules_per_token = 0.0;
   double watts = 0.0;  // average power over the phase
+  // `joules` by component: each component of the phase's layers plus the
+  // phase's cycle share of that component's energy no layer carries (all of
+  // leakage; DRAM activates and refreshes), so the components sum to
+  // `joules` and each sums over the phases to the run's.
+  EnergyBreakdown energy;
 };
 PhaseFigures ComputePhaseFigures(const RunReport& report, const PhaseResult& phase);
 

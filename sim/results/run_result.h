@@ -22,6 +22,13 @@ struct StallBreakdown {
   uint64_t total() const { return busy + dram_wait + sram_conflict + vector_wait + idle; }
 };
 
+// `whole` minus `part`, cause by cause (`part` is a prefix of `whole`'s run).
+inline StallBreakdown StallsAfter(const StallBreakdown& whole, const StallBreakdown& part) {
+  return {whole.busy - part.busy, whole.dram_wait - part.dram_wait,
+          whole.sram_conflict - part.sram_conflict, whole.vector_wait - part.vector_wait,
+          whole.idle - part.idle};
+}
+
 // Events that cost energy, counted by the units that cause them.
 struct EventCounts {
   uint64_t weight_uses = 0;         // activation x weight products in the array (= K*N*M per GEMM)
@@ -152,12 +159,9 @@ struct PhaseResult {
   uint64_t cycles = 0;
   uint64_t tokens = 0;    // tokens produced or consumed (batch x tokens)
   ResourceDemand demand;  // of every op of the phase
-  // Tree-array cycles of the phase by cause; they sum to `cycles`. A wait
-  // is charged to the phase of the tile waited for, the final drain to the
-  // last phase.
-  StallBreakdown stalls;
   Resource bound_by = Resource::kDramBandwidth;
   uint64_t bound_cycles = 0;  // the binding resource's cycles for `demand`
+  StallBreakdown stalls;      // the phase's core cycles by cause; sums to `cycles`
 };
 
 struct RunResult {

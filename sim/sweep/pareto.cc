@@ -43,14 +43,14 @@ bool Dominates(const std::vector<double>& a, const std::vector<double>& b,
   return better;
 }
 
-bool ParseFinite(const std::string& text, double& out) {
+}  // namespace
+
+bool ParseCsvNumber(const std::string& text, double& out) {
   if (text.empty()) return false;
   char* end = nullptr;
   out = std::strtod(text.c_str(), &end);
   return *end == '\0' && std::isfinite(out);
 }
-
-}  // namespace
 
 std::vector<Objective> ParseObjectives(const std::string& spec) {
   std::vector<Objective> out;
@@ -99,7 +99,7 @@ ObjectiveRows SelectObjectiveRows(const CsvTable& table, const std::vector<Objec
     std::vector<double> v(columns.size());
     bool finite = true;
     for (size_t k = 0; k < columns.size(); ++k) {
-      finite = finite && ParseFinite(table.rows[r][columns[k]], v[k]);
+      finite = finite && ParseCsvNumber(table.rows[r][columns[k]], v[k]);
     }
     if (!finite) continue;
     out.rows.push_back(r);

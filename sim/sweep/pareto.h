@@ -25,6 +25,10 @@ struct Objective {
 // an empty column, a repeated column or a count outside 2..3.
 std::vector<Objective> ParseObjectives(const std::string& spec);
 
+// A CSV field as a finite number: true when the whole of `text` reads as
+// one (strtod), false for empty text, trailing characters, inf or nan.
+bool ParseCsvNumber(const std::string& text, double& out);
+
 // Indices into `values` of the non-dominated rows, in input order.
 // values[i][k] is row i's value of objective k; every row has one value
 // per objective and none is NaN.

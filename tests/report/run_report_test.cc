@@ -248,6 +248,26 @@ TEST(RunReportOfASimulation, TotalsAddUpOverPhasesAndStalls) {
                 p.at("joules").get<double>() / p.at("seconds").get<double>(), 1e-9);
     EXPECT_GE(p.at("cycles").get<uint64_t>(), p.at("bound_cycles").get<uint64_t>())
         << "a phase never beats its binding resource";
+    // Each phase's stall causes cover exactly its cycles, and its energy
+    // components add up to its joules.
+    const std::vector<std::string> causes = {"busy", "dram_wait", "sram_conflict", "vector_wait",
+                                             "idle"};
+    EXPECT_DOUBLE_EQ(SumOf(p.at("stalls"), causes), p.at("cycles").get<double>());
+    EXPECT_NEAR(SumOf(p.at("energy"), {"arithmetic", "sram", "dram", "decoder", "leakage"}),
+                p.at("joules").get<double>(), 1e-15);
+  }
+  // Phase by phase, each stall cause and energy component adds up to the run's.
+  for (const char* cause : {"busy", "dram_wait", "sram_conflict", "vector_wait", "idle"}) {
+    EXPECT_EQ(phases[0].at("stalls").at(cause).get<uint64_t>() +
+                  phases[1].at("stalls").at(cause).get<uint64_t>(),
+              j.at("stalls").at(cause).get<uint64_t>())
+        << cause;
+  }
+  for (const char* part : {"arithmetic", "sram", "dram", "decoder", "leakage"}) {
+    EXPECT_NEAR(phases[0].at("energy").at(part).get<double>() +
+                    phases[1].at("energy").at(part).get<double>(),
+                j.at("energy").at(part).get<double>(), 1e-15)
+        << part;
   }
 }
 
