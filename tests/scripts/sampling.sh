@@ -4,7 +4,8 @@
 # prefill and decode, batch 1-8), every sampled total is within 1 % of the exact
 # run, every phase within 2 %, the stated 99.7 % bound contains the exact value
 # for at least 90 % of the (workload, figure) pairs, and the identities of an
-# exact run hold (scripts/validate-sampling --check). Also: the JSON of a sampled
+# exact run hold (scripts/validate-sampling --check); with nothing left out the
+# estimate equals the exact run figure for figure. Also: the JSON of a sampled
 # run carries the sampling keys of the report contract and validates against
 # docs/schemas/run.schema.json; the console prints the bound beside the figures;
 # a sweep file with `sampling: true` runs its points sampled; --sample is refused
@@ -54,6 +55,20 @@ grep -Eq '^  time +[0-9]+ cycles \(\+-[0-9.]+%\)' console.txt ||
   fail "the console does not print the cycle bound: $(grep 'time ' console.txt)"
 grep -Eq 'mJ total \(\+-[0-9.]+%\)' console.txt || fail "the console does not print the energy bound"
 grep -q '^  sampled ' console.txt || fail "the console does not say the run was sampled"
+
+# 2b. With nothing left out (6 steps <= 8 kept, 4 layers <= 2 + 2), the units partition
+# the whole run, so the estimate is the exact run: every total, stall, event, DRAM count,
+# energy and phase figure equal, and a zero bound.
+small=(run --model models/wren-0.7b.yaml --set model.layers=4 --prefill 16 --decode 6)
+"$BIN" "${small[@]}" --sample --json all-s.json -q || fail "sampled run (all kept) exited non-zero"
+"$BIN" "${small[@]}" --json all-e.json -q || fail "exact run (all kept) exited non-zero"
+"$PY" - <<'PY' || fail "a sampled run with nothing left out differs from the exact run"
+import json
+s, e = json.load(open("all-s.json")), json.load(open("all-e.json"))
+for k in ["totals", "stalls", "events", "dram", "energy", "phases"]:
+    assert s[k] == e[k], (k, s[k], e[k])
+assert s["sampling"]["relative_error_bound"] == {"cycles": 0.0, "energy_joules": 0.0}
+PY
 
 # 3. A sweep with sampling: true.
 cp "$SRC/models/wren-0.7b.yaml" model.yaml
