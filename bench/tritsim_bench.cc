@@ -50,11 +50,17 @@ constexpr double kCase3MaxWallSeconds = 5.0;
 constexpr double kMaxRequestToWaitRatio = 0.3;
 constexpr double kMaxPeakRssMib = 200.0;
 constexpr double kMaxRssGrowthFraction = 0.10;  // case 4 against case 1
+// Sampled simulation (issue 14): case 5s at least 30x faster than case 5;
+// case 6s (prefill 1024 + 256 decode tokens of the 13B model) under 20 s.
+constexpr double kMinSampledSpeedup = 30.0;
+constexpr double kCase6sMaxWallSeconds = 20.0;
 
 struct BenchCase {
   std::string id;
   std::string title;
   std::vector<std::string> args;  // after `tritsim run`, paths relative to the repo root
+  bool sampled = false;           // run with --sample: its DRAM requests are estimated
+  bool on_request = false;        // run only when named with --case (too long for every run)
 };
 
 std::vector<BenchCase> Cases() {
@@ -75,6 +81,26 @@ std::vector<BenchCase> Cases() {
        "condor-13b, 1 decode token at context 2048, heron-edge-ddr4",
        {"--model", "models/condor-13b.yaml", "--arch", "configs/heron-edge-ddr4.yaml", "--decode",
         "1", "--context", "2048"}},
+      {"5",
+       "meadowlark-3b, 64 decode tokens at context 1024, heron-edge-ddr4, exact",
+       {"--model", "models/meadowlark-3b.yaml", "--arch", "configs/heron-edge-ddr4.yaml",
+        "--decode", "64", "--context", "1024"}},
+      {"5s",
+       "as case 5, sampled (--sample)",
+       {"--model", "models/meadowlark-3b.yaml", "--arch", "configs/heron-edge-ddr4.yaml",
+        "--decode", "64", "--context", "1024", "--sample"},
+       true},
+      {"6",
+       "condor-13b, prefill 1024 + 256 decode tokens, osprey-card-hbm2e, exact (--case 6 only)",
+       {"--model", "models/condor-13b.yaml", "--arch", "configs/osprey-card-hbm2e.yaml",
+        "--prefill", "1024", "--decode", "256"},
+       false,
+       true},
+      {"6s",
+       "as case 6, sampled (--sample)",
+       {"--model", "models/condor-13b.yaml", "--arch", "configs/osprey-card-hbm2e.yaml",
+        "--prefill", "1024", "--decode", "256", "--sample"},
+       true},
   };
 }
 
@@ -94,6 +120,9 @@ struct CaseFigures {
   long peak_rss_kib = 0;      // max over repeats
   uint64_t cycles = 0;
   uint64_t dram_requests = 0;  // dram.reads + dram.writes
+  double energy_joules = 0.0;
+  double cycles_bound = 0.0;  // sampled: sampling.relative_error_bound.cycles
+  double energy_bound = 0.0;
 };
 
 const char* kUsage =
@@ -104,7 +133,8 @@ const char* kUsage =
     "  --work DIR      scratch directory for run reports (default /tmp)\n"
     "  --repeat N      runs per case and timed-wait measurements (default 3)\n"
     "  --waits N       timed waits per measurement (default 10000000)\n"
-    "  --case ID       run only this case (1..4), repeatable\n";
+    "  --case ID       run only this case (1, 2, 3, 4, 5, 5s, 6, 6s), repeatable; case 6\n"
+    "                  (about 10 minutes) runs only when named\n";
 
 [[noreturn]] void UsageError(const std::string& message) {
   std::cerr << "tritsim_bench: " << message << "\n" << kUsage;
@@ -149,7 +179,7 @@ Options ParseOptions(int argc, char** argv) {
     const std::vector<BenchCase> cases = Cases();
     const bool known =
         std::any_of(cases.begin(), cases.end(), [&id](const BenchCase& c) { return c.id == id; });
-    if (!known) UsageError("unknown case '" + id + "' (cases are 1 to 4)");
+    if (!known) UsageError("unknown case '" + id + "' (cases are 1 to 5, 5s, 6, 6s)");
   }
   return o;
 }
@@ -182,6 +212,12 @@ void ReadReport(const std::string& json_path, CaseFigures& f) {
   f.cycles = report.at("totals").at("cycles").get<uint64_t>();
   f.dram_requests = report.at("dram").at("reads").get<uint64_t>() +
                     report.at("dram").at("writes").get<uint64_t>();
+  f.energy_joules = report.at("totals").at("energy_joules").get<double>();
+  if (report.contains("sampling")) {
+    const nlohmann::json& bound = report.at("sampling").at("relative_error_bound");
+    f.cycles_bound = bound.at("cycles").get<double>();
+    f.energy_bound = bound.at("energy_joules").get<double>();
+  }
 }
 
 CaseFigures MeasureCase(const Options& o, const BenchCase& c) {
@@ -220,6 +256,7 @@ void PrintCaseTable(const std::vector<CaseFigures>& cases, double wait_ns, int r
                "M requests / wall s | wall ns / request | ratio to timed wait | peak RSS MiB |\n"
             << "| --- | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |\n";
   for (const CaseFigures& f : cases) {
+    if (f.spec.sampled) continue;  // its requests are estimated, not simulated: see below
     const double ns = NsPerRequest(f);
     std::cout << "| " << f.spec.id << " | " << f.spec.title << " | " << Fixed(f.wall_seconds, 3)
               << " | " << Fixed(f.cpu_seconds, 3) << " | " << f.cycles << " | "
@@ -236,6 +273,30 @@ const CaseFigures* Find(const std::vector<CaseFigures>& cases, const std::string
   return nullptr;
 }
 
+double Percent(double fraction) { return fraction * 100.0; }
+
+// Sampled cases beside their exact case ("5s" beside "5"): wall time, speed-up,
+// the error of the estimate against the exact run and the stated bound.
+void PrintSampledTable(const std::vector<CaseFigures>& cases) {
+  std::cout << "| case | workload | wall s | exact case wall s | speed-up | cycles error % | "
+               "cycles bound % | energy error % | energy bound % | peak RSS MiB |\n"
+            << "| --- | --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |\n";
+  for (const CaseFigures& f : cases) {
+    if (!f.spec.sampled) continue;
+    const CaseFigures* exact = Find(cases, f.spec.id.substr(0, f.spec.id.size() - 1));
+    const auto error = [&](double sampled, double reference) {
+      return exact ? Fixed(Percent(sampled / reference - 1.0), 4) : std::string("-");
+    };
+    std::cout << "| " << f.spec.id << " | " << f.spec.title << " | " << Fixed(f.wall_seconds, 3)
+              << " | " << (exact ? Fixed(exact->wall_seconds, 3) : "not run") << " | "
+              << (exact ? Fixed(exact->wall_seconds / f.wall_seconds, 1) + "x" : "-") << " | "
+              << error(double(f.cycles), exact ? double(exact->cycles) : 1.0) << " | "
+              << Fixed(Percent(f.cycles_bound), 4) << " | "
+              << error(f.energy_joules, exact ? exact->energy_joules : 1.0) << " | "
+              << Fixed(Percent(f.energy_bound), 4) << " | " << Fixed(RssMib(f), 1) << " |\n";
+  }
+}
+
 void PrintTarget(const std::string& target, const std::string& measured, bool met) {
   std::cout << "| " << target << " | " << measured << " | " << (met ? "yes" : "**no**") << " |\n";
 }
@@ -249,6 +310,7 @@ void PrintTargets(const std::vector<CaseFigures>& cases, double wait_ns) {
     PrintTarget("case 3 wall < " + Fixed(kCase3MaxWallSeconds, 1) + " s",
                 Fixed(c3->wall_seconds, 3) + " s", c3->wall_seconds < kCase3MaxWallSeconds);
   for (const CaseFigures& f : cases) {
+    if (f.spec.sampled) continue;
     const double ratio = NsPerRequest(f) / wait_ns;
     PrintTarget("case " + f.spec.id + " wall ns / request <= " + Fixed(kMaxRequestToWaitRatio, 1) +
                     " x timed wait (" + Fixed(kMaxRequestToWaitRatio * wait_ns, 1) + " ns)",
@@ -265,10 +327,21 @@ void PrintTargets(const std::vector<CaseFigures>& cases, double wait_ns) {
     PrintTarget("case 4 peak RSS within " + Fixed(kMaxRssGrowthFraction * 100, 0) + "% of case 1",
                 Fixed(growth * 100, 1) + "%", growth <= kMaxRssGrowthFraction);
   }
+  const CaseFigures* c5 = Find(cases, "5");
+  const CaseFigures* c5s = Find(cases, "5s");
+  if (c5 && c5s) {
+    const double speedup = c5->wall_seconds / c5s->wall_seconds;
+    PrintTarget("case 5s at least " + Fixed(kMinSampledSpeedup, 0) + "x faster than case 5",
+                Fixed(speedup, 1) + "x", speedup >= kMinSampledSpeedup);
+  }
+  if (const CaseFigures* c6s = Find(cases, "6s"))
+    PrintTarget("case 6s wall < " + Fixed(kCase6sMaxWallSeconds, 0) + " s",
+                Fixed(c6s->wall_seconds, 3) + " s", c6s->wall_seconds < kCase6sMaxWallSeconds);
 }
 
 bool Selected(const Options& o, const BenchCase& c) {
-  return o.only.empty() || std::find(o.only.begin(), o.only.end(), c.id) != o.only.end();
+  if (o.only.empty()) return !c.on_request;
+  return std::find(o.only.begin(), o.only.end(), c.id) != o.only.end();
 }
 
 int Main(int argc, char** argv) {
@@ -290,6 +363,13 @@ int Main(int argc, char** argv) {
             << Fixed(wait_ns, 1) << " ns per wait (min of " << o.repeat * int(cases.size() + 1)
             << " runs of " << o.waits << " waits, " << o.repeat
             << " before the cases and after each).\n\n";
+  if (std::any_of(cases.begin(), cases.end(),
+                  [](const CaseFigures& f) { return f.spec.sampled; })) {
+    std::cout << "Sampled simulation (tritsim run --sample) beside the exact run of the same "
+                 "workload; bounds are the run's stated 99.7 % relative half-widths.\n\n";
+    PrintSampledTable(cases);
+    std::cout << "\n";
+  }
   PrintTargets(cases, wait_ns);
   return 0;
 }

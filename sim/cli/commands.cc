@@ -22,6 +22,7 @@
 #include "report/plots.h"
 #include "report/resolved_config.h"
 #include "report/run_report.h"
+#include "run/sampling.h"
 #include "run/simulation.h"
 #include "trace/trace_format.h"
 #include "trace/trace_reader.h"
@@ -237,14 +238,32 @@ void CheckRunFlags(const InputOptions& in, const std::string& trace_path, bool w
   }
 }
 
-// Simulates with a progress line on stderr when `show_progress`.
+// Simulates (sampled when `sampling` is given) with a progress line on
+// stderr when `show_progress`.
 RunResult SimulateRun(const ArchConfig& arch, TraceSource& source, SimOptions options,
-                      bool show_progress, uint64_t ops_per_step) {
-  if (!show_progress) return RunSimulation(arch, source, options);
+                      bool show_progress, uint64_t ops_per_step, const SamplingOptions* sampling) {
+  auto simulate = [&]() {
+    return sampling ? RunSampledSimulation(arch, source, options, *sampling)
+                    : RunSimulation(arch, source, options);
+  };
+  if (!show_progress) return simulate();
   const WorkloadConfig& w = source.header().workload;
   ProgressLine line(w.prefill_tokens > 0 ? 1 : 0, w.decode_tokens, ops_per_step);
   options.on_progress = [&line](const SimProgress& p) { line.Update(p); };
-  return RunSimulation(arch, source, options);
+  return simulate();
+}
+
+// Refuses --sample where a sampled run cannot be estimated or reported.
+void CheckSampleFlags(const ResolvedRun& inputs, const SimOptions& options) {
+  if (!inputs.model) {
+    throw UsageError(
+        "run: --sample needs the model (its layer count); use --model instead of --trace");
+  }
+  if (!options.vcd_path.empty() || !options.dram_log_path.empty()) {
+    throw UsageError(
+        "run: --sample simulates only part of the run; do not combine it with --vcd or "
+        "--dram-log");
+  }
 }
 
 void WriteRunOutputs(const RunOutputs& out, const RunReport& report,
@@ -266,6 +285,7 @@ int RunCommand(const Args& args) {
   RunOutputs out;
   SimOptions options;
   bool quiet = false;
+  bool sample = false;
   po::options_description desc("run options");
   desc.add_options()("help,h", "show this help");
   AddInputOptions(desc, in, true);
@@ -286,14 +306,18 @@ int RunCommand(const Args& args) {
       "weights-resident", po::bool_switch(&options.weights_resident),
       "what-if: all weights already sit in the scratchpad, so no weight DMA; refused (exit 4) "
       "when they do not fit in the half of it beside the activations; needs --model; recorded "
-      "as design.weights_resident in the JSON")("quiet,q", po::bool_switch(&quiet),
-                                                "no console summary and no progress line");
+      "as design.weights_resident in the JSON")(
+      "sample", po::bool_switch(&sample),
+      "sampled simulation: simulate a systematic sample of the decode steps and layers, "
+      "estimate the rest and report the error bound (99.7 % confidence) beside the figures; "
+      "refused with --trace, --vcd and --dram-log (docs/performance.md)")(
+      "quiet,q", po::bool_switch(&quiet), "no console summary and no progress line");
   if (WantsHelp(args)) {
     PrintHelp(
         "usage: tritsim run [--model FILE | --trace FILE] [--arch FILE] [workload options]\n"
         "       tritsim run --from-report RUN.json\n"
         "                   [--json FILE] [--csv FILE] [--plots DIR] [--vcd FILE]\n"
-        "                   [--dram-log FILE [--dram-log-limit N]]\n"
+        "                   [--dram-log FILE [--dram-log-limit N]] [--sample]\n"
         "On a terminal, a progress line (step, share done, simulated time, ETA) shows on stderr.",
         desc);
     return 0;
@@ -314,13 +338,19 @@ int RunCommand(const Args& args) {
                            ? ResolveRunInputs(in, trace_path, options.weights_resident)
                            : LoadResolvedRun(from_report);
   options.weights_resident = inputs.weights_resident;
+  SamplingOptions sampling;
+  if (sample) {
+    CheckSampleFlags(inputs, options);
+    sampling.layers = inputs.model->layers;
+  }
   // Resolved before running, so a bad energy table is rejected at once.
   const EnergyTable table = ResolveEnergyTable(inputs.arch.energy, inputs.arch.dram.preset);
   uint64_t ops_per_step = 0;
   std::unique_ptr<TraceSource> source = OpenRunTrace(inputs, ops_per_step);
   inputs.workload = source->header().workload;
   const ArchConfig& arch = inputs.arch;
-  const RunResult run = SimulateRun(arch, *source, options, WantsProgressLine(quiet), ops_per_step);
+  const RunResult run = SimulateRun(arch, *source, options, WantsProgressLine(quiet), ops_per_step,
+                                    sample ? &sampling : nullptr);
   const EnergyBreakdown energy = ComputeEnergyWithTable(arch, table, run);
   const AreaBreakdown area = EstimateArea(arch);
   const RunReport report{arch, inputs.workload, run, energy, area, table};

@@ -33,7 +33,7 @@ constexpr double kRangeSlack = 1e-9;
 const Schema& SweepSchema() {
   static const Schema schema{
       {"name", "base.arch", "base.model", "base.workload.prefill", "base.workload.decode",
-       "base.workload.context", "base.workload.batch", "points", "constraints"},
+       "base.workload.context", "base.workload.batch", "points", "constraints", "sampling"},
       {"axes"}};
   return schema;
 }
@@ -70,6 +70,7 @@ class SweepReader {
     const Section top(doc_, doc_.root(), "");
     if (!top.Has("name")) Fail("name", 0, "missing; give the sweep a name");
     top.ReadString("name", file.name);
+    top.ReadBool("sampling", file.sampling);
     ReadBase(top.Child("base"), file);
     const YAML::Node axes = doc_.root()["axes"];
     const YAML::Node points = doc_.root()["points"];

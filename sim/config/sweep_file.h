@@ -13,6 +13,8 @@
 //   points:                           explicit list of maps KEY -> scalar
 //   constraints:                      list of "KEY OP NUMBER", OP in < <= > >= == !=,
 //                                     KEY an axis key or area_mm2
+//   sampling: BOOL                    optional, default false: every point runs
+//                                     tritsim run --sample (docs/performance.md)
 // KEY is arch.<path> or model.<path> (an override of that file, checked
 // later by loading it) or workload.prefill|decode|context|batch.
 //
@@ -77,6 +79,7 @@ struct SweepFile {
   std::vector<SweepAxis> axes;  // file order; empty when `points:` is used
   std::vector<SweepPointSpec> points;  // explicit points; empty when `axes:` is used
   std::vector<SweepConstraint> constraints;
+  bool sampling = false;  // `sampling:`: points run sampled (run --sample)
 };
 
 // Reads and checks a sweep file. Throws tritsim::Error (kBadInput).

@@ -24,11 +24,7 @@ Accelerator::Accelerator(sc_core::sc_module_name name, const ArchConfig& arch,
   dma_.TraceActivity(activity_.get(), load, activity_->AddSignal("dma_store"));
 }
 
-void Accelerator::Collect(RunResult& result) {
-  sequencer_.Collect(result);
-  memory_->Finish(sequencer_.end_ps());
-  const HardwareRates& rates = sequencer_.rates();
-  result.core_mhz = 1e6 / double(period_ps_);
+void Accelerator::CountEvents(RunResult& result) const {
   result.dram = memory_->stats();
   tree_array_.AddEventsTo(result.events);
   vector_unit_.AddEventsTo(result.events);
@@ -40,6 +36,22 @@ void Accelerator::Collect(RunResult& result) {
   result.events.dram_refreshes = result.dram.refreshes;
   result.vector_busy_cycles = vector_unit_.busy_cycles();
   result.sram_port_busy_cycles = sram_.reads() + sram_.writes() + sram_.conflict_cycles();
+}
+
+void Accelerator::Snapshot(RunResult& result) const {
+  result.stalls = sequencer_.stalls();
+  result.cycles = result.stalls.total();
+  result.sim_ps = result.cycles * period_ps_;
+  result.events = EventCounts();
+  CountEvents(result);
+}
+
+void Accelerator::Collect(RunResult& result) {
+  sequencer_.Collect(result);
+  memory_->Finish(sequencer_.end_ps());
+  const HardwareRates& rates = sequencer_.rates();
+  result.core_mhz = 1e6 / double(period_ps_);
+  CountEvents(result);
   result.peak_ops_per_second = rates.array_ops_per_cycle / (double(period_ps_) * 1e-12);
   result.dram_peak_bytes_per_second = rates.dram_bytes_per_cycle / (double(period_ps_) * 1e-12);
   const double hz = 1.0 / (double(period_ps_) * 1e-12);

@@ -32,10 +32,19 @@ class Accelerator : public sc_core::sc_module {
 
   // Everything measured, after the simulation has finished.
   void Collect(RunResult& result);
+  // While running (from on_op_retired): the cumulative counters so far, for
+  // a sampled run's per-unit differences. Fills cycles (the stalls charged
+  // so far, which sum to them), stalls, events, dram, vector_busy_cycles and
+  // sram_port_busy_cycles; not layers or phases (op_results() has the ops).
+  void Snapshot(RunResult& result) const;
+  const std::vector<OpResult>& op_results() const { return sequencer_.op_results(); }
   // The --vcd activity log, or null when none was asked for.
   const ActivityLog* activity() const { return activity_.get(); }
 
  private:
+  // The unit counters every result holds (events, DRAM, busy cycles).
+  void CountEvents(RunResult& result) const;
+
   ArchConfig arch_;
   std::unique_ptr<MemorySystem> memory_;
   std::unique_ptr<ActivityLog> activity_;

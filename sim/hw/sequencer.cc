@@ -21,6 +21,7 @@ Sequencer::Sequencer(sc_core::sc_module_name name, const ArchConfig& arch,
                      ComputeUnitIf& tree_array, ComputeUnitIf& vector_unit)
     : sc_core::sc_module(name),
       arch_(arch),
+      on_op_retired_(options.on_op_retired),
       trace_(trace),
       dma_(dma),
       tree_array_(tree_array),
@@ -230,9 +231,11 @@ void Sequencer::RetireOp(OpInFlight& op) {
     prefill_stalls_ = stalls_;
   }
   if (op.phase == Phase::kDecode && op.step == 0) first_decode_end_ps_ = now;
+  const int64_t retired_index = op.index;
   ops_in_flight_.pop_front();
   ++ops_retired_;
   op_retired_.notify(sc_core::SC_ZERO_TIME);
+  if (on_op_retired_) on_op_retired_(retired_index);
 }
 
 PhaseResult Sequencer::MakePhase(Phase phase, uint64_t cycles, uint64_t tokens,

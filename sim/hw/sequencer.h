@@ -52,6 +52,10 @@ class Sequencer : public sc_core::sc_module {
 
   // Fills the timing fields of `result` (cycles, phases, layers, stalls).
   void Collect(RunResult& result) const;
+  // While running: the stalls charged so far (they sum to the cycles up to
+  // the last charge) and the per-op results of the ops retired so far.
+  const StallBreakdown& stalls() const { return stalls_; }
+  const std::vector<OpResult>& op_results() const { return layers_; }
   const HardwareRates& rates() const { return tiler_.rates(); }
   uint64_t end_ps() const { return end_ps_; }
 
@@ -93,6 +97,7 @@ class Sequencer : public sc_core::sc_module {
   void Fail(std::exception_ptr error);
 
   ArchConfig arch_;
+  std::function<void(int64_t)> on_op_retired_;
   TraceSource& trace_;
   DmaEngine& dma_;
   ComputeUnitIf& tree_array_;

@@ -36,6 +36,10 @@ struct SimOptions {
   // Called once per trace record, from the simulation thread; empty: none.
   // Must be cheap (it runs per op) and must not throw.
   std::function<void(const SimProgress&)> on_progress;
+  // Called when the sequencer retires an op (its index among the ops taken
+  // from the trace, from 0), from the simulation thread; empty: none. The
+  // sampled run (sim/run/sampling.h) measures its units here.
+  std::function<void(int64_t op_index)> on_op_retired;
 };
 
 }  // namespace tritsim

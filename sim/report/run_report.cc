@@ -161,6 +161,31 @@ nlohmann::ordered_json EnergyJson(const EnergyBreakdown& e) {
           {"leakage", e.leakage_joules}};
 }
 
+// The `sampling` section of a sampled run (docs/report-format.md).
+nlohmann::ordered_json SamplingJson(const SamplingSummary& s) {
+  using nlohmann::ordered_json;
+  ordered_json phases = ordered_json::array();
+  for (const SamplingPhase& p : s.phases) {
+    phases.push_back({{"name", PhaseName(p.phase)},
+                      {"detailed_steps", p.detailed_steps},
+                      {"total_steps", p.total_steps},
+                      {"relative_error_bound",
+                       {{"cycles", p.cycles_bound}, {"energy_joules", p.energy_bound}}}});
+  }
+  return {{"method",
+           "systematic sample of steps and layers; regression on context (99.7% "
+           "two-sided Student t interval)"},
+          {"detailed_steps", s.detailed_steps},
+          {"total_steps", s.total_steps},
+          {"detailed_layers", s.detailed_layers},
+          {"total_layers", s.total_layers},
+          {"confidence", s.confidence},
+          {"t_quantile", s.t_quantile},
+          {"degrees_of_freedom", s.degrees_of_freedom},
+          {"relative_error_bound", {{"cycles", s.cycles_bound}, {"energy_joules", s.energy_bound}}},
+          {"phases", phases}};
+}
+
 }  // namespace
 
 nlohmann::ordered_json RunJson(const RunReport& r) {
@@ -188,6 +213,7 @@ nlohmann::ordered_json RunJson(const RunReport& r) {
                  {"joules_per_token", h.joules_per_token},
                  {"picojoules_per_op", h.picojoules_per_op},
                  {"area_mm2", r.area.total_mm2()}};
+  if (run.sampling.sampled) j["sampling"] = SamplingJson(run.sampling);
   ordered_json phases = ordered_json::array();
   for (const PhaseResult& p : run.phases) {
     const PhaseFigures f = ComputePhaseFigures(r, p);
@@ -329,14 +355,28 @@ std::string RunCsv(const RunReport& r) {
   return out;
 }
 
+// " (+-0.42%)" after a sampled figure, or "" in an exact run.
+std::string Bound(const SamplingSummary& s, double relative) {
+  if (!s.sampled) return "";
+  return " (+-" + fmt::format("{:.2f}", relative * 100.0) + "%)";
+}
+
+const SamplingPhase* SampledPhase(const SamplingSummary& s, Phase phase) {
+  for (const SamplingPhase& p : s.phases) {
+    if (p.phase == phase) return &p;
+  }
+  return nullptr;
+}
+
 // One phase: time, throughput, energy and the binding resource.
 void PrintPhase(const RunReport& r, const PhaseResult& p, std::ostream& out) {
   const PhaseFigures f = ComputePhaseFigures(r, p);
+  const SamplingPhase* sp = SampledPhase(r.run.sampling, p.phase);
   out << "    " << PhaseName(p.phase) << (p.phase == Phase::kDecode ? "        " : "       ")
-      << p.cycles << " cycles = " << Time(f.seconds) << ", " << p.tokens
-      << (p.tokens == 1 ? " token, " : " tokens, ") << Fixed(f.tokens_per_second, 2)
-      << " tokens/s, " << Fixed(f.joules_per_token * 1e3, 3) << " mJ/token, " << Fixed(f.watts, 2)
-      << " W; bound by " << ResourceName(p.bound_by) << "\n";
+      << p.cycles << " cycles" << (sp ? Bound(r.run.sampling, sp->cycles_bound) : "") << " = "
+      << Time(f.seconds) << ", " << p.tokens << (p.tokens == 1 ? " token, " : " tokens, ")
+      << Fixed(f.tokens_per_second, 2) << " tokens/s, " << Fixed(f.joules_per_token * 1e3, 3)
+      << " mJ/token, " << Fixed(f.watts, 2) << " W; bound by " << ResourceName(p.bound_by) << "\n";
 }
 
 void PrintRunSummary(const RunReport& r, std::ostream& out) {
@@ -350,7 +390,15 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
       << Scaled(run.peak_ops_per_second, "op/s") << ", DRAM "
       << Scaled(run.dram_peak_bytes_per_second, "B/s") << ", ridge "
       << Fixed(Ratio(run.peak_ops_per_second, run.dram_peak_bytes_per_second), 1) << " op/B\n\n";
-  out << "  time            " << run.cycles << " cycles = " << Time(h.seconds) << "\n";
+  const SamplingSummary& sampling = run.sampling;
+  if (sampling.sampled) {
+    out << "  sampled         " << sampling.detailed_steps << " of " << sampling.total_steps
+        << " steps, " << sampling.detailed_layers << " of " << sampling.total_layers
+        << " layers in detail; bounds: " << Fixed(sampling.confidence * 100.0, 1)
+        << "% confidence, relative\n";
+  }
+  out << "  time            " << run.cycles << " cycles" << Bound(sampling, sampling.cycles_bound)
+      << " = " << Time(h.seconds) << "\n";
   for (const PhaseResult& p : run.phases) PrintPhase(r, p, out);
   out << "  first token     " << Time(h.time_to_first_token_seconds) << "\n";
   if (h.time_per_output_token_seconds > 0) {
@@ -368,9 +416,9 @@ void PrintRunSummary(const RunReport& r, std::ostream& out) {
   out << "  DRAM            " << Scaled(h.dram_bandwidth_bytes_per_second, "B/s")
       << " achieved, row hits " << Percent(run.dram.row_hit_rate()) << ", refresh "
       << Percent(h.refresh_fraction) << "\n\n";
-  out << "  energy          " << Fixed(r.energy.total_joules() * 1e3, 3) << " mJ total, "
-      << Fixed(h.joules_per_token * 1e3, 3) << " mJ/token, " << Fixed(h.picojoules_per_op, 3)
-      << " pJ/op\n";
+  out << "  energy          " << Fixed(r.energy.total_joules() * 1e3, 3) << " mJ total"
+      << Bound(sampling, sampling.energy_bound) << ", " << Fixed(h.joules_per_token * 1e3, 3)
+      << " mJ/token, " << Fixed(h.picojoules_per_op, 3) << " pJ/op\n";
   const double e = std::max(1e-300, r.energy.total_joules());
   out << "    by component  arithmetic " << Percent(r.energy.arithmetic_joules / e) << ", SRAM "
       << Percent(r.energy.sram_joules / e) << ", DRAM " << Percent(r.energy.dram_joules / e)

@@ -164,7 +164,33 @@ struct PhaseResult {
   StallBreakdown stalls;      // the phase's core cycles by cause; sums to `cycles`
 };
 
+// How a sampled run (tritsim run --sample, sim/run/sampling.h) was
+// estimated, and its stated error: the half-width of a two-sided confidence
+// interval at `confidence`, relative to the estimate.
+struct SamplingPhase {
+  Phase phase = Phase::kDecode;
+  int64_t detailed_steps = 0;
+  int64_t total_steps = 0;
+  double cycles_bound = 0.0;  // relative half-width of the phase's cycles
+  double energy_bound = 0.0;  // relative half-width of the phase's joules
+};
+
+struct SamplingSummary {
+  bool sampled = false;           // false: an exact run (no `sampling` in reports)
+  int64_t detailed_steps = 0;     // steps simulated in detail, over the phases
+  int64_t total_steps = 0;        // steps of the workload
+  int64_t detailed_layers = 0;    // decoder layers simulated (and measured)
+  int64_t total_layers = 0;       // decoder layers of the workload (steps x layers)
+  double confidence = 0.0;        // e.g. 0.997
+  double t_quantile = 0.0;        // Student t quantile used for the run's totals
+  double degrees_of_freedom = 0;  // Welch-Satterthwaite, of the run's cycle variance
+  double cycles_bound = 0.0;      // relative half-width of the total cycles
+  double energy_bound = 0.0;      // relative half-width of the total joules
+  std::vector<SamplingPhase> phases;
+};
+
 struct RunResult {
+  SamplingSummary sampling;  // sampled runs only
   std::string arch_name;
   std::string model_name;
   bool weights_resident = false;  // SimOptions::weights_resident of the run

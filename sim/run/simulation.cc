@@ -47,9 +47,19 @@ class ProgressSource : public TraceSource {
   SimProgress progress_;
 };
 
-RunResult Simulate(const ArchConfig& arch, TraceSource& trace, const SimOptions& options) {
+RunResult Simulate(const ArchConfig& arch, TraceSource& trace, const SimOptions& given,
+                   const RetireProbe* probe) {
   QuietSystemC();
   std::unique_ptr<Accelerator> top;
+  SimOptions options = given;
+  if (probe) {
+    options.on_op_retired = [&top, probe](int64_t index) {
+      if (!probe->wants(index)) return;
+      RunResult so_far;
+      top->Snapshot(so_far);
+      probe->measure(index, so_far, top->op_results());
+    };
+  }
   ProgressSource reporting(trace, options.on_progress);
   TraceSource& source = options.on_progress ? static_cast<TraceSource&>(reporting) : trace;
   try {
@@ -78,14 +88,19 @@ RunResult Simulate(const ArchConfig& arch, TraceSource& trace, const SimOptions&
 // With a DRAM log, the whole run streams into the log's temporary file, so a
 // missing or read-only folder fails before simulating (exit 3) and a failed
 // run leaves no log.
+RunResult RunSimulation(const ArchConfig& arch, TraceSource& trace, const SimOptions& options,
+                        const RetireProbe& probe) {
+  return Simulate(arch, trace, options, &probe);
+}
+
 RunResult RunSimulation(const ArchConfig& arch, TraceSource& trace, const SimOptions& options) {
-  if (options.dram_log_path.empty()) return Simulate(arch, trace, options);
+  if (options.dram_log_path.empty()) return Simulate(arch, trace, options, nullptr);
   RunResult result;
   StreamFileAtomically(options.dram_log_path, [&](std::ostream& out) {
     DramCommandLog log(out, arch.dram, static_cast<uint64_t>(options.dram_log_limit));
     SimOptions logged = options;
     logged.dram_log = &log;
-    result = Simulate(arch, trace, logged);
+    result = Simulate(arch, trace, logged, nullptr);
     log.Close();
   });
   return result;

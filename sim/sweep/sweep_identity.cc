@@ -138,6 +138,7 @@ SweepIdentity IdentityOf(const SweepFile& file) {
   id.tritsim_version = TRITSIM_VERSION;
   id.arch_file_hash = Hex64(Fnv1a64(BaseText(file.arch_path, kDefaultArchYaml)));
   id.model_file_hash = Hex64(Fnv1a64(BaseText(file.model_path, kDefaultModelYaml)));
+  id.sampling = file.sampling;
   return id;
 }
 
@@ -152,6 +153,7 @@ std::string InputHash(const SweepIdentity& id, const std::vector<SweepSetting>& 
   uint64_t h = Fnv1a64("tritsim " + id.tritsim_version + "\n");
   h = Fnv1a64("arch " + id.arch_file_hash + "\nmodel " + id.model_file_hash + "\n", h);
   for (const SweepSetting& s : settings) h = Fnv1a64("set " + s.key + "=" + s.value + "\n", h);
+  if (id.sampling) h = Fnv1a64("sampling\n", h);  // absent when exact: older hashes hold
   return Hex64(Fnv1a64("workload " + WorkloadText(workload) + "\n", h));
 }
 

@@ -31,6 +31,7 @@ struct SweepIdentity {
   std::string tritsim_version;  // TRITSIM_VERSION
   std::string arch_file_hash;   // 16 hex digits
   std::string model_file_hash;  // 16 hex digits
+  bool sampling = false;        // the sweep file's sampling: (part of each input hash when true)
 };
 
 // The identity column names, in order.

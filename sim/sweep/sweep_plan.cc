@@ -275,6 +275,7 @@ std::vector<std::string> PointRunArgs(const SweepPlan& plan, const SweepPoint& p
               {"--prefill", std::to_string(w.prefill_tokens), "--decode",
                std::to_string(w.decode_tokens), "--context", std::to_string(w.context_tokens),
                "--batch", std::to_string(w.batch), "--json", json_path, "-q"});
+  if (plan.file.sampling) args.push_back("--sample");
   return args;
 }
 

@@ -58,7 +58,7 @@ std::vector<const SweepPoint*> ShardPoints(const SweepPlan& plan, size_t shard, 
 // The arguments after the program name that run one point:
 // run [--model M] [--arch A] [--set K=V ...]   (M, A: the point's own, else the plan's) --prefill
 // .. --decode .. --context .. --batch ..
-//     --json JSON_PATH -q
+//     --json JSON_PATH -q [--sample]  (--sample when the sweep file says sampling: true)
 std::vector<std::string> PointRunArgs(const SweepPlan& plan, const SweepPoint& point,
                                       const std::string& json_path);
 
