@@ -45,6 +45,7 @@ struct ServeArgs {
   int64_t count = 100, max_batch = 16, chunk_tokens = 512, prefill_tokens = 2048;
   int64_t validate_steps = 6, seed = 1, jobs = 2;
   bool find_max_rate = false;
+  bool quiet = false;
   std::string json, csv, plots;
 };
 
@@ -112,6 +113,7 @@ po::options_description Options(ServeArgs& a) {
                    "steps of the run simulated in full detail to measure the step-time error "
                    "(default 6)");
   AddIntegerOption(d, "jobs", 1, a.jobs, "engine runs at once (default 2)");
+  d.add_options()("quiet,q", po::bool_switch(&a.quiet), "print nothing but errors");
   d.add_options()("json", po::value(&a.json)->value_name("FILE"), "write the figures as JSON");
   d.add_options()("csv", po::value(&a.csv)->value_name("FILE"), "write one row per request");
   d.add_options()("plots", po::value(&a.plots)->value_name("DIR"),
@@ -346,7 +348,7 @@ int ServeCommand(const Args& args) {
   WorkDir work;
   EngineRunner runner{SelfPath(), ArchArgs(a.in), work.path(), int(a.jobs)};
   EngineStepCost engine(model, runner);
-  std::cerr << "tritsim serve: calibrating step times on the engine...\n";
+  if (!a.quiet) std::cerr << "tritsim serve: calibrating step times on the engine...\n";
   engine.Calibrate(range);
   SampledSteps sampled(engine, size_t(a.validate_steps), uint64_t(a.seed) ^ 0x5eed);
   report.outcome = Serve(requests, policy, sampled);
@@ -367,8 +369,9 @@ int ServeCommand(const Args& args) {
     }
   }
   if (!sampled.kept.empty()) {
-    std::cerr << "tritsim serve: simulating " << sampled.kept.size()
-              << " steps in detail to measure the step-time error...\n";
+    if (!a.quiet)
+      std::cerr << "tritsim serve: simulating " << sampled.kept.size()
+                << " steps in detail to measure the step-time error...\n";
     report.check = engine.Validate(sampled.kept);
   }
   report.calibration_shapes = engine.calibration_shapes();
@@ -387,7 +390,7 @@ int ServeCommand(const Args& args) {
   }
   if (!a.csv.empty()) WriteFileAtomically(a.csv, ServeCsv(report.outcome));
   if (!a.plots.empty()) WriteServePlots(a.plots, report);
-  PrintServe(report, std::cout);
+  if (!a.quiet) PrintServe(report, std::cout);
   return 0;
 }
 
