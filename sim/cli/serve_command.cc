@@ -229,15 +229,14 @@ CalibrationRange SizeKvCache(const ModelConfig& model, const ArchConfig& arch,
   return RangeOf(requests, policy, fits_in(capacity.free_bytes));
 }
 
-LoadPoint ServeAt(double rate, const ServeArgs& a, RequestGenerator g, const ServePolicy& policy,
-                  StepCostModel& cost, double slo_ttft, double slo_tpot) {
+LoadPoint ServeAt(double rate, RequestGenerator g, const ServePolicy& policy, StepCostModel& cost,
+                  double slo_ttft, double slo_tpot) {
   g.rate_per_second = rate;
   const ServeOutcome out = Serve(GenerateRequests(g), policy, cost);
   LoadPoint p;
   p.rate = rate;
   p.summary = Summarize(out, slo_ttft, slo_tpot);
   p.kv_peak_bytes = out.kv_peak_bytes;
-  (void)a;
   return p;
 }
 
@@ -248,14 +247,14 @@ bool MeetsSlo(const LoadPoint& p, double slo_ttft, double slo_tpot) {
 
 // Bisection on the rate (the p99 latencies grow with load): the highest rate
 // found, within 2%, whose p99 TTFT and TPOT meet the targets.
-void FindMaxRate(ServeReport& report, const ServeArgs& a, const ServePolicy& policy,
-                 StepCostModel& cost, double slo_ttft, double slo_tpot) {
+void FindMaxRate(ServeReport& report, const ServePolicy& policy, StepCostModel& cost,
+                 double slo_ttft, double slo_tpot) {
   report.searched_max_rate = true;
   // Start from the throughput the design reached, and bracket.
   double lo = 0, hi = std::max(1e-3, report.summary.throughput_requests_per_second);
   LoadPoint best;
   for (int i = 0; i < 30; ++i) {
-    const LoadPoint p = ServeAt(hi, a, report.generator, policy, cost, slo_ttft, slo_tpot);
+    const LoadPoint p = ServeAt(hi, report.generator, policy, cost, slo_ttft, slo_tpot);
     if (!MeetsSlo(p, slo_ttft, slo_tpot)) break;
     lo = hi;
     best = p;
@@ -264,7 +263,7 @@ void FindMaxRate(ServeReport& report, const ServeArgs& a, const ServePolicy& pol
   if (lo == 0) {  // the starting rate misses: search below it
     for (int i = 0; i < 30 && lo == 0; ++i) {
       hi /= 2;
-      const LoadPoint p = ServeAt(hi, a, report.generator, policy, cost, slo_ttft, slo_tpot);
+      const LoadPoint p = ServeAt(hi, report.generator, policy, cost, slo_ttft, slo_tpot);
       if (MeetsSlo(p, slo_ttft, slo_tpot)) {
         lo = hi;
         best = p;
@@ -275,7 +274,7 @@ void FindMaxRate(ServeReport& report, const ServeArgs& a, const ServePolicy& pol
   }
   while (hi / lo > 1.02) {
     const double mid = std::sqrt(lo * hi);
-    const LoadPoint p = ServeAt(mid, a, report.generator, policy, cost, slo_ttft, slo_tpot);
+    const LoadPoint p = ServeAt(mid, report.generator, policy, cost, slo_ttft, slo_tpot);
     if (MeetsSlo(p, slo_ttft, slo_tpot)) {
       lo = mid;
       best = p;
@@ -377,9 +376,9 @@ int ServeCommand(const Args& args) {
   report.calibration_shapes = engine.calibration_shapes();
   report.child_runs = engine.child_runs();
   for (double rate : rates) {
-    report.load.push_back(ServeAt(rate, a, report.generator, policy, engine, slo_ttft, slo_tpot));
+    report.load.push_back(ServeAt(rate, report.generator, policy, engine, slo_ttft, slo_tpot));
   }
-  if (a.find_max_rate) FindMaxRate(report, a, policy, engine, slo_ttft, slo_tpot);
+  if (a.find_max_rate) FindMaxRate(report, policy, engine, slo_ttft, slo_tpot);
 
   if (!a.json.empty()) {
     nlohmann::ordered_json resolved = {{"model", ResolvedModelJson(model)},

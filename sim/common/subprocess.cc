@@ -10,6 +10,8 @@
 
 #include <cerrno>
 #include <cstring>
+#include <fstream>
+#include <sstream>
 
 #include "common/error.h"
 
@@ -193,6 +195,23 @@ int ExitCodeOf(int wait_status) {
   if (WIFEXITED(wait_status)) return WEXITSTATUS(wait_status);
   if (WIFSIGNALED(wait_status)) return kSignalExitBase + WTERMSIG(wait_status);
   return -1;
+}
+
+std::string ReadFileText(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
+std::string LastStderrLine(const std::string& text, size_t max_chars) {
+  std::istringstream in(text);
+  std::string line, last;
+  while (std::getline(in, line)) {
+    if (line.find_first_not_of(" \t\r") != std::string::npos) last = line;
+  }
+  if (last.size() > max_chars) last = last.substr(0, max_chars) + "...";
+  return last.empty() ? "no message" : last;
 }
 
 }  // namespace tritsim

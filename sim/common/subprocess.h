@@ -58,6 +58,14 @@ ChildResult RunChildToEnd(const SpawnRequest& request);
 // Returns the wait status. Throws tritsim::Error (kInternal) on other errors.
 int WaitForChild(pid_t pid, rusage* usage = nullptr);
 
+// The whole file at `path` ("" when it cannot be read): a child's captured
+// stream or report.
+std::string ReadFileText(const std::string& path);
+
+// The last non-blank line of a child's stderr text, cut to `max_chars`
+// (then "..." is appended); "no message" when there is none.
+std::string LastStderrLine(const std::string& text, size_t max_chars = 300);
+
 // A wait status as one number: the exit code, or 128 + signal number for a
 // child killed by a signal (the shell's convention), -1 otherwise.
 int ExitCodeOf(int wait_status);

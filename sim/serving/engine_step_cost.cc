@@ -3,9 +3,7 @@
 #include <sys/types.h>
 #include <algorithm>
 #include <cmath>
-#include <fstream>
 #include <nlohmann/json.hpp>
-#include <sstream>
 
 #include <Eigen/Dense>
 
@@ -75,23 +73,6 @@ std::vector<StepShape> CalibrationShapes(const CalibrationRange& r,
   for (int64_t i = 1; i < r.max_batch; ++i) mixed.sequences.push_back(SequenceSpan{1, mid});
   shapes.push_back(mixed);
   return shapes;
-}
-
-std::string ReadText(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-// The last non-empty line of a child's stderr, for the error message.
-std::string LastLine(const std::string& text) {
-  std::istringstream in(text);
-  std::string line, last;
-  while (std::getline(in, line)) {
-    if (!line.empty()) last = line;
-  }
-  return last;
 }
 
 std::string ShapeText(const StepShape& s) {
@@ -193,7 +174,7 @@ std::vector<EngineStepCost::Measured> EngineStepCost::Simulate(const std::vector
   for (size_t i = 0; i < shapes.size(); ++i) {
     if (ExitCodeOf(status[i]) != 0) {
       throw Error(ExitCode::kSimFailed, "serve: the engine run of step " + ShapeText(shapes[i]) +
-                                            " failed: " + LastLine(ReadText(errors[i])));
+                                            " failed: " + LastStderrLine(ReadFileText(errors[i])));
     }
     const nlohmann::json j = ReadRunJsonFile(json[i]);
     Measured m;

@@ -13,9 +13,7 @@
 #include <cstring>
 #include <deque>
 #include <filesystem>
-#include <fstream>
 #include <map>
-#include <sstream>
 
 #include "common/error.h"
 #include "common/subprocess.h"
@@ -68,24 +66,6 @@ struct Running {
   std::string stderr_path;
 };
 
-std::string ReadText(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  std::ostringstream text;
-  text << in.rdbuf();
-  return text.str();
-}
-
-// The last non-empty line of `text`, cut to kMaxErrorChars.
-std::string LastLine(const std::string& text) {
-  std::istringstream in(text);
-  std::string line, last;
-  while (std::getline(in, line)) {
-    if (line.find_first_not_of(" \t\r") != std::string::npos) last = line;
-  }
-  if (last.size() > kMaxErrorChars) last = last.substr(0, kMaxErrorChars) + "...";
-  return last.empty() ? "no message" : last;
-}
-
 pid_t Spawn(const SweepRunOptions& options, const std::vector<std::string>& args,
             const std::string& stderr_path) {
   SpawnRequest request;
@@ -136,11 +116,12 @@ std::vector<std::string> PointRow(const SweepPoint& point, int wait_status,
   }
   const int code = WIFEXITED(wait_status) ? WEXITSTATUS(wait_status) : -1;
   if (code != 0) {
-    return FailedRow(point, "exit " + std::to_string(code) + ": " + LastLine(stderr_text));
+    return FailedRow(
+        point, "exit " + std::to_string(code) + ": " + LastStderrLine(stderr_text, kMaxErrorChars));
   }
   std::vector<std::string> metrics;
   try {
-    metrics = MetricsFromRunJson(nlohmann::json::parse(ReadText(json_path)));
+    metrics = MetricsFromRunJson(nlohmann::json::parse(ReadFileText(json_path)));
   } catch (const std::exception& e) {
     return FailedRow(point, json_path + ": " + e.what());
   }
@@ -197,7 +178,7 @@ SweepRunSummary RunSweepPoints(const SweepPlan& plan, const std::vector<const Sw
     running.erase(it);
     fill();  // the next point starts before this row is synced to disk
     std::vector<std::string> row =
-        PointRow(*done.point, status, ReadText(done.stderr_path), done.json_path);
+        PointRow(*done.point, status, ReadFileText(done.stderr_path), done.json_path);
     const std::vector<std::string> identity = IdentityFields(plan, *done.point);
     row.insert(row.end(), identity.begin(), identity.end());
     fs::remove(done.stderr_path, ec);

@@ -33,6 +33,22 @@ class FixedCost : public StepCostModel {
   double prefill_, decode_;
 };
 
+// Keeps every step it is asked about; a step costs `per_token` seconds per
+// new token plus `fixed`, no energy.
+class RecordingCost : public StepCostModel {
+ public:
+  RecordingCost(double per_token, double fixed) : per_token_(per_token), fixed_(fixed) {}
+  StepCost Cost(const StepShape& step) override {
+    shapes.push_back(step);
+    return StepCost{per_token_ * double(step.tokens()) + fixed_, 0};
+  }
+  double IdleWatts() const override { return 0; }
+  std::vector<StepShape> shapes;
+
+ private:
+  double per_token_, fixed_;
+};
+
 std::vector<Request> Poisson(double rate, int64_t count, int64_t prompt, int64_t output,
                              uint64_t seed) {
   RequestGenerator g;
@@ -167,15 +183,7 @@ TEST(ServeCapacity, NeverHoldsMoreKvCacheThanTheCapacityAndRefusesWhatCanNeverFi
 // up to the token budget; every prompt token is computed exactly once and
 // every request produces exactly its output tokens.
 TEST(ServeSchedule, ChunkedStepsKeepTheTokenBudgetAndConserveTokens) {
-  class Recorder : public StepCostModel {
-   public:
-    StepCost Cost(const StepShape& step) override {
-      shapes.push_back(step);
-      return StepCost{0.001 * double(step.tokens()) + 0.01, 0};
-    }
-    double IdleWatts() const override { return 0; }
-    std::vector<StepShape> shapes;
-  } cost;
+  RecordingCost cost(0.001, 0.01);
   RequestGenerator g;
   g.rate_per_second = 200;
   g.count = 300;
@@ -210,15 +218,7 @@ TEST(ServeSchedule, ChunkedStepsKeepTheTokenBudgetAndConserveTokens) {
 }
 
 TEST(ServeSchedule, PrefillFirstRunsAdmittedPromptsAloneThenDecodesEverySequence) {
-  class Recorder : public StepCostModel {
-   public:
-    StepCost Cost(const StepShape& step) override {
-      shapes.push_back(step);
-      return StepCost{0.01, 0};
-    }
-    double IdleWatts() const override { return 0; }
-    std::vector<StepShape> shapes;
-  } cost;
+  RecordingCost cost(0.0, 0.01);
   // Two requests at t = 0: one prefill step of both prompts, then decodes.
   std::vector<Request> requests = {{0, 0.0, 5, 3}, {1, 0.0, 7, 2}};
   ServePolicy p = OneAtATime();
@@ -234,15 +234,7 @@ TEST(ServeSchedule, PrefillFirstRunsAdmittedPromptsAloneThenDecodesEverySequence
 // Prefill-first with a prompt budget: admitted prompts run alone in steps of
 // at most the budget, in admission order; one longer prompt runs by itself.
 TEST(ServeSchedule, PrefillFirstKeepsThePromptBudgetInAdmissionOrder) {
-  class Recorder : public StepCostModel {
-   public:
-    StepCost Cost(const StepShape& step) override {
-      shapes.push_back(step);
-      return StepCost{0.01, 0};
-    }
-    double IdleWatts() const override { return 0; }
-    std::vector<StepShape> shapes;
-  } cost;
+  RecordingCost cost(0.0, 0.01);
   std::vector<Request> requests = {
       {0, 0.0, 300, 2}, {1, 0.0, 300, 2}, {2, 0.0, 900, 2}, {3, 0.0, 100, 2}};
   ServePolicy p = OneAtATime();
