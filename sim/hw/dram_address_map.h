@@ -54,6 +54,10 @@ class DramAddressMap {
   uint64_t Encode(const DramAddress& where) const;
 
   uint64_t burst_bytes() const { return burst_bytes_; }
+  // Bursts from one column of a row to the next (the product of the radixes
+  // of the fields less significant than the column) and columns per row.
+  uint64_t column_stride() const { return below_[static_cast<size_t>(AddressField::kColumn)]; }
+  uint64_t columns() const { return radix_[static_cast<size_t>(AddressField::kColumn)]; }
 
  private:
   static constexpr int kFields = 5;

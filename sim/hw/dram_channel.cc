@@ -141,6 +141,7 @@ void DramChannel::CountKind(const DramRequest& r, DramCommandTimes& reported) {
 }
 
 void DramChannel::QueuedUnopened(const DramRequest& r, size_t age) {
+  ++slow_steps_;
   ++unopened_;
   unopened_from_ = std::min(unopened_from_, age);
   ahead_retry_ps_ = std::min(ahead_retry_ps_, AheadPs(r, 0));
@@ -176,6 +177,7 @@ void DramChannel::LogSlow(DramCommand cmd, uint64_t time_ps, uint32_t bank, uint
 }
 
 void DramChannel::CommitPre(uint32_t bank, uint64_t pre_ps) {
+  ++slow_steps_;
   Bank& b = banks_[bank];
   Log(DramCommand::kPre, pre_ps, bank, b.open_row, 0);
   b.act_ok_ps = Max(b.act_ok_ps, pre_ps + t_.tRP);
@@ -188,6 +190,7 @@ void DramChannel::AutoPrecharge(uint32_t bank) {
 }
 
 void DramChannel::CommitAct(const DramRequest& r, uint64_t act_ps) {
+  ++slow_steps_;
   Bank& b = banks_[r.bank];
   Log(DramCommand::kAct, act_ps, r.bank, r.row, 0);
   OpenRow(r.bank, r.row);
@@ -230,6 +233,7 @@ uint64_t DramChannel::AheadPs(const DramRequest& r, uint64_t after_ps) const {
 // bank's oldest request needing a row matters: a younger one to the same
 // bank waits for the same command or for the row just opened to drain.
 void DramChannel::OpenRowsAheadSlow(uint64_t now_ps, uint64_t horizon_ps) {
+  ++slow_steps_;
   const uint64_t last_pre_ps = std::min(horizon_ps, next_refresh_ps_ - 1);
   const uint64_t last_act_ps = std::min(last_pre_ps, LastUsefulActPs());
   uint64_t earliest = kNever;
@@ -296,6 +300,7 @@ void DramChannel::ActivateAhead(const DramRequest& r, uint64_t act_ps) {
 }
 
 void DramChannel::Refresh() {
+  ++slow_steps_;
   uint64_t ref_ps = next_refresh_ps_;
   for (Bank& b : banks_) {
     uint64_t ready = b.act_ok_ps;
@@ -319,6 +324,7 @@ void DramChannel::Refresh() {
 
 // The general case: any kind of request, refresh in the way or not.
 DramPick DramChannel::PickAny(uint64_t now_ps) {
+  ++slow_steps_;
   while (now_ps >= next_refresh_ps_) Refresh();
   size_t age = ChooseFrFcfs(now_ps);
   DramCommandTimes times = Plan(At(age), now_ps);
@@ -332,6 +338,111 @@ DramPick DramChannel::PickAny(uint64_t now_ps) {
   RemoveAt(age);
   OpenRowsAhead(now_ps, times.cas_ps);
   return pick;
+}
+
+namespace {
+
+// Writers of AppendShape. A channel's state outlives the transfer that
+// wrote it, and the next transfer may start before this one's last event,
+// so a time before the floor is not dead for good. `Aged` writes a time at
+// or after the floor relative to it, an earlier one as itself, tagged with
+// the top bit (SameShape in memory_system.cc accepts an earlier time that
+// is either unchanged or moved by exactly the period). `Exact` writes times
+// that are compared with each other (arrivals, the last pick) relative to
+// the floor, without the tag. kNever stays itself.
+uint64_t Aged(uint64_t ps, uint64_t floor_ps) {
+  if (ps == DramChannel::kNever) return ps;
+  return ps >= floor_ps ? ps - floor_ps : ps | DramChannel::kBeforeFloor;
+}
+uint64_t Exact(uint64_t ps, uint64_t floor_ps) {
+  return (ps - floor_ps) & ~DramChannel::kBeforeFloor;  // wraps below the floor: still exact
+}
+// For the probe: any time before the floor as 0.
+uint64_t Clamped(uint64_t ps, uint64_t floor_ps) {
+  if (ps == DramChannel::kNever) return ps;
+  return ps > floor_ps ? ps - floor_ps : 0;
+}
+// Advance's counterpart of Aged: a time at or after the floor of the look
+// that started the period was written in the period and moves with it; an
+// earlier one was not, and stays.
+uint64_t Moved(uint64_t ps, uint64_t floor_ps, uint64_t delta_ps) {
+  return ps == DramChannel::kNever || ps < floor_ps ? ps : ps + delta_ps;
+}
+size_t SlotFrom(size_t tag, size_t slot, size_t window) {
+  return tag >= slot ? tag - slot : tag + window - slot;
+}
+
+}  // namespace
+
+void DramChannel::AppendShape(uint64_t floor_ps, size_t slot, size_t window,
+                              std::vector<uint64_t>& out) const {
+  const size_t groups = banks_.size() / banks_per_group_;
+  out.push_back(queued_);
+  out.push_back(unopened_);
+  out.push_back(Exact(pick_ok_ps_, floor_ps));
+  out.push_back(Aged(ahead_retry_ps_, floor_ps));
+  out.push_back(Aged(cas_any_ok_ps_, floor_ps));
+  out.push_back(Aged(rd_after_wr_any_ok_ps_, floor_ps));
+  out.push_back(Aged(rd_data_ok_ps_, floor_ps));
+  out.push_back(Aged(wr_data_ok_ps_, floor_ps));
+  for (size_t g = 0; g < groups; ++g) {
+    out.push_back(Aged(cas_group_ok_ps_[g], floor_ps));
+    out.push_back(Aged(rd_after_wr_group_ok_ps_[g], floor_ps));
+  }
+  for (const Bank& b : banks_) {
+    out.push_back(b.open_row);
+    out.push_back(uint64_t{b.queued_hits} << 8 | static_cast<uint64_t>(b.ahead));
+    out.push_back(Aged(b.pre_ok_ps, floor_ps));
+  }
+  for (size_t age = 0; age < queued_; ++age) {
+    const DramRequest& r = At(age);
+    out.push_back(r.row);
+    out.push_back(Exact(r.arrival_ps, floor_ps));
+    out.push_back(uint64_t{r.bank} << 1 | uint64_t{r.is_write});
+    out.push_back(SlotFrom(r.tag, slot, window));
+  }
+}
+
+void DramChannel::AppendProbe(uint64_t floor_ps, std::vector<uint64_t>& out) const {
+  out.push_back(queued_);
+  out.push_back(Exact(pick_ok_ps_, floor_ps));
+  out.push_back(queued_ > 0 ? Exact(queue_[head_].arrival_ps, floor_ps) : kNever);
+  out.push_back(Clamped(cas_any_ok_ps_, floor_ps));
+}
+
+void DramChannel::Advance(uint64_t floor_ps, uint64_t delta_ps, size_t tag_shift, size_t window,
+                          uint32_t column_shift, const DramStats& per_period, uint64_t times) {
+  const size_t groups = banks_.size() / banks_per_group_;
+  pick_ok_ps_ += delta_ps;
+  ahead_retry_ps_ = Moved(ahead_retry_ps_, floor_ps, delta_ps);
+  cas_any_ok_ps_ = Moved(cas_any_ok_ps_, floor_ps, delta_ps);
+  rd_after_wr_any_ok_ps_ = Moved(rd_after_wr_any_ok_ps_, floor_ps, delta_ps);
+  rd_data_ok_ps_ = Moved(rd_data_ok_ps_, floor_ps, delta_ps);
+  wr_data_ok_ps_ = Moved(wr_data_ok_ps_, floor_ps, delta_ps);
+  for (size_t g = 0; g < groups; ++g) {
+    cas_group_ok_ps_[g] = Moved(cas_group_ok_ps_[g], floor_ps, delta_ps);
+    rd_after_wr_group_ok_ps_[g] = Moved(rd_after_wr_group_ok_ps_[g], floor_ps, delta_ps);
+  }
+  for (Bank& b : banks_) b.pre_ok_ps = Moved(b.pre_ok_ps, floor_ps, delta_ps);
+  // A hint that may always be lower (the scans it starts skip hits); every
+  // pick of the skipped periods lowered it.
+  unopened_from_ = 0;
+  for (size_t age = 0; age < queued_; ++age) {
+    DramRequest& r = queue_[Slot(age)];
+    r.arrival_ps += delta_ps;
+    r.column += column_shift;
+    const size_t tag = r.tag + tag_shift;
+    r.tag = static_cast<uint32_t>(tag >= window ? tag - window : tag);
+  }
+  stats_.reads += times * per_period.reads;
+  stats_.writes += times * per_period.writes;
+  stats_.row_hits += times * per_period.row_hits;
+  stats_.row_misses += times * per_period.row_misses;
+  stats_.row_conflicts += times * per_period.row_conflicts;
+  stats_.activates += times * per_period.activates;
+  stats_.refreshes += times * per_period.refreshes;
+  stats_.busy_ps += times * per_period.busy_ps;
+  stats_.refresh_ps += times * per_period.refresh_ps;
 }
 
 void DramChannel::Finish(uint64_t end_ps) {

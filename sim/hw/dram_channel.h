@@ -179,6 +179,40 @@ class DramChannel {
   const DramStats& stats() const { return stats_; }
   uint64_t tck_ps() const { return tck_ps_; }
 
+  // ---- Steady runs (memory_system.cc skips whole periods of them). ----
+  // Counts the steps whose timing may depend on the refresh deadline or on
+  // rows being opened: general picks, passes opening rows ahead, refreshes.
+  // A stretch with none of them only streams ready row hits.
+  uint64_t slow_steps() const { return slow_steps_; }
+  // The column command of the last pick (every pick of a stretch without
+  // slow steps is a CAS, so this is the latest command of the stretch).
+  uint64_t last_pick_ps() const { return pick_ok_ps_; }
+  uint64_t next_refresh_ps() const { return next_refresh_ps_; }
+  // Appends to `out` everything the channel's future decisions depend on,
+  // relative to `floor_ps` (the caller's current event time): times at or
+  // after the floor as their distance from it, earlier "allowed from" times
+  // as themselves with kBeforeFloor set, times compared with each other
+  // (arrivals, the last pick) exactly. Window tags are written relative to
+  // the caller's next window slot `slot` (of `window`). If a look one period
+  // later writes words that agree (memory_system.cc, SameShape), the
+  // channel's decisions in the rest of this transfer are those of the
+  // period moved by the difference of the floors, until the refresh
+  // deadline.
+  static constexpr uint64_t kBeforeFloor = uint64_t{1} << 63;
+  void AppendShape(uint64_t floor_ps, size_t slot, size_t window, std::vector<uint64_t>& out) const;
+  // A few words of the shape that change with nearly every request outside
+  // a steady run (queue length, last pick, oldest arrival, CAS constraint).
+  static constexpr size_t kProbeWords = 4;
+  void AppendProbe(uint64_t floor_ps, std::vector<uint64_t>& out) const;
+  // Moves the channel `times` periods ahead along a steady run whose first
+  // look was at `floor_ps`: every time at or after that floor (written in
+  // the period) by delta_ps, while earlier ones stay, queued tags by tag_shift window slots,
+  // queued columns by column_shift, and the stats by `times` x per_period.
+  // The refresh deadline stays where it is; the ACT constraints too (only
+  // slow steps use or change them). REQUIRES: no command log.
+  void Advance(uint64_t floor_ps, uint64_t delta_ps, size_t tag_shift, size_t window,
+               uint32_t column_shift, const DramStats& per_period, uint64_t times);
+
   static constexpr int kMaxBankGroups = 16;
 
  private:
@@ -300,6 +334,7 @@ class DramChannel {
   size_t unopened_from_ = 0;  // requests older than this age are all hits
   uint64_t ahead_retry_ps_ = 0;
   uint64_t ahead_pass_ = 0;        // passes of OpenRowsAheadSlow so far
+  uint64_t slow_steps_ = 0;        // see slow_steps()
   DramCommandLog* log_ = nullptr;  // null: no command log
   uint32_t log_channel_ = 0;
 

@@ -12,6 +12,23 @@
 // rules and allocates nothing per request. The earliest pick over the
 // channels comes from a winner tree, so one channel's change costs
 // log2(channels) steps, not a scan of every channel.
+//
+// Steady runs. Inside a row, a long transfer settles into a run that
+// repeats itself: every `period` requests, the same banks get the same
+// kind of requests, and the whole state (queues, banks, window, timing
+// constraints) is the state of a period earlier moved later in time. Every
+// rule of the channel is invariant under a shift of time by whole DRAM
+// clocks except the refresh deadline, and the requests' coordinates repeat
+// with the period until the column wraps into the next bank or row. So
+// when two looks at the state one period apart agree (after the relative
+// encoding of DramChannel::AppendShape), only ready row hits were streamed
+// in between (no slow step: no refresh, no general pick, no row opened),
+// the shift is a whole number of clocks, and the next k periods' requests
+// repeat the last period's coordinates and end before every channel's
+// refresh deadline, then the next k periods are exactly the last one moved
+// k times: the loop moves the state there and adds k times the period's
+// stats (a fast-forward of a periodic steady state; the results are
+// identical to simulating every request, which the tests check).
 #include "hw/memory_system.h"
 
 #include <algorithm>
@@ -42,13 +59,14 @@ void AddStats(DramStats& sum, const DramStats& s) {
 
 class DramMemory final : public MemorySystem {
  public:
-  DramMemory(const DramConfig& dram, RowOpening opening);
+  DramMemory(const DramConfig& dram, RowOpening opening, SteadyRuns steady);
 
   uint64_t Transfer(uint64_t address, uint64_t bytes, bool is_write, uint64_t start_ps,
                     int64_t max_outstanding) override;
   void Finish(uint64_t end_ps) override;
   void SetCommandLog(DramCommandLog* log) override;
   const DramStats& stats() const override;
+  uint64_t skipped_requests() const override { return skipped_requests_; }
   uint64_t burst_bytes() const override { return map_.burst_bytes(); }
   double peak_bytes_per_second() const override { return peak_bytes_per_second_; }
 
@@ -65,6 +83,19 @@ class DramMemory final : public MemorySystem {
     size_t slot = 0;            // window slot of the next arrival
     size_t window = 1;          // window slots in use (min(max_outstanding, count))
     bool is_write = false;
+    uint64_t next_look = 0;  // picked count of the next look for a steady run
+  };
+  // The whole state at a look that may start a steady run of `period`
+  // requests (its probe matched the probe of a look `period` earlier).
+  struct Candidate {
+    bool valid = false;
+    uint64_t period = 0;
+    uint64_t picked = 0;      // Progress::picked then
+    uint64_t arrived = 0;     // Progress::arrived then
+    uint64_t floor_ps = 0;    // Progress::now_ps then
+    uint64_t slow_steps = 0;  // summed over the channels
+    std::vector<uint64_t> shape;
+    std::vector<DramStats> stats;  // per channel
   };
 
   // The event loop of Transfer; kOneChannel drops the channel indexing and
@@ -103,6 +134,13 @@ class DramMemory final : public MemorySystem {
     }
   }
   template <bool kOneChannel>
+  void LookForSteadyRun(Progress& p);
+  void WriteShape(const Progress& p, std::vector<uint64_t>& out) const;
+  void WriteProbe(const Progress& p, uint64_t slow_steps, std::vector<uint64_t>& out) const;
+  uint64_t PeriodsAhead(const Progress& p, uint64_t period, uint64_t delta_ps) const;
+  template <bool kOneChannel>
+  void SkipPeriods(Progress& p, uint64_t periods, uint64_t delta_ps);
+  template <bool kOneChannel>
   void Arrive(Progress& p, uint64_t when_ps);
   template <bool kOneChannel>
   void PickOn(Progress& p, size_t channel, uint64_t when_ps);
@@ -125,6 +163,21 @@ class DramMemory final : public MemorySystem {
   std::vector<uint64_t> tree_ps_;
   std::vector<uint32_t> tree_channel_;
   mutable DramStats total_;
+  // Steady runs (see the file comment): a look every look_every_ picks
+  // writes a cheap probe of the state; the last kProbes probes are kept in
+  // a ring (probe_words_ each). A probe equal to one j looks earlier makes
+  // a candidate of period j x look_every_, whose whole state is compared a
+  // period later.
+  static constexpr size_t kProbes = 8;
+  bool skip_steady_ = true;
+  uint64_t look_every_ = 1;  // a whole number of column strides
+  size_t probe_words_ = 0;
+  std::vector<uint64_t> probe_ring_;  // kProbes x probe_words_
+  size_t probes_held_ = 0;
+  size_t probe_next_ = 0;  // ring entry the next probe goes to
+  Candidate candidate_;
+  uint64_t skipped_requests_ = 0;
+  std::vector<uint64_t> scratch_;   // the probe, then the shape, of this look
   DramCommandLog* log_ = nullptr;   // null: no command log
   uint64_t transfer_start_ps_ = 0;  // start_ps of the current Transfer
 };
@@ -139,8 +192,49 @@ size_t RoundUpToPowerOfTwo(size_t n) {
   return p;
 }
 
-DramMemory::DramMemory(const DramConfig& dram, RowOpening opening)
-    : map_(dram), banks_per_group_(static_cast<uint32_t>(dram.banks_per_group)) {
+// Window slots in a probe (the most recent completions and gates).
+constexpr size_t kProbeWindowSlots = 8;
+// Probe words per request a look may cost on average: a look every
+// probe_words_ / kProbeWordsPerRequest requests or more.
+constexpr uint64_t kProbeWordsPerRequest = 2;
+
+// Whether `later`, written one period of delta_ps after `earlier`, repeats
+// it: every word equal, except that a time before the floor (tagged by
+// DramChannel::kBeforeFloor) may also have moved by exactly delta_ps (it was
+// written in the period, before this look's floor).
+bool SameShape(const std::vector<uint64_t>& earlier, const std::vector<uint64_t>& later,
+               uint64_t delta_ps) {
+  if (earlier.size() != later.size()) return false;
+  constexpr uint64_t kTag = DramChannel::kBeforeFloor;
+  for (size_t i = 0; i < later.size(); ++i) {
+    const uint64_t a = earlier[i], b = later[i];
+    if (a == b) continue;
+    const bool both_before =
+        (a & b & kTag) != 0 && a != DramChannel::kNever && b != DramChannel::kNever;
+    if (!both_before || (b & ~kTag) != (a & ~kTag) + delta_ps) return false;
+  }
+  return true;
+}
+
+// a - b, field by field (b an earlier reading of the same counters).
+DramStats StatsSince(const DramStats& a, const DramStats& b) {
+  DramStats d;
+  d.reads = a.reads - b.reads;
+  d.writes = a.writes - b.writes;
+  d.row_hits = a.row_hits - b.row_hits;
+  d.row_misses = a.row_misses - b.row_misses;
+  d.row_conflicts = a.row_conflicts - b.row_conflicts;
+  d.activates = a.activates - b.activates;
+  d.refreshes = a.refreshes - b.refreshes;
+  d.busy_ps = a.busy_ps - b.busy_ps;
+  d.refresh_ps = a.refresh_ps - b.refresh_ps;
+  return d;
+}
+
+DramMemory::DramMemory(const DramConfig& dram, RowOpening opening, SteadyRuns steady)
+    : map_(dram),
+      banks_per_group_(static_cast<uint32_t>(dram.banks_per_group)),
+      skip_steady_(steady == SteadyRuns::kSkip) {
   channels_.reserve(static_cast<size_t>(dram.channels));
   for (int64_t c = 0; c < dram.channels; ++c) channels_.emplace_back(dram, opening);
   leaves_ = RoundUpToPowerOfTwo(channels_.size());
@@ -148,6 +242,11 @@ DramMemory::DramMemory(const DramConfig& dram, RowOpening opening)
   tree_channel_.assign(2 * leaves_, 0);
   for (size_t c = 0; c < leaves_; ++c) tree_channel_[leaves_ + c] = static_cast<uint32_t>(c);
   for (size_t node = leaves_; node-- > 1;) tree_channel_[node] = tree_channel_[2 * node];
+  probe_words_ = 2 + kProbeWindowSlots + channels_.size() * DramChannel::kProbeWords;
+  probe_ring_.assign(kProbes * probe_words_, 0);
+  const uint64_t stride = map_.column_stride();
+  look_every_ = stride;
+  while (look_every_ * kProbeWordsPerRequest < probe_words_) look_every_ += stride;
   const uint64_t burst_ps = channels_.front().tck_ps() *
                             static_cast<uint64_t>(dram.timing.burst_length) / kDdrTransfersPerCycle;
   peak_bytes_per_second_ = static_cast<double>(dram.channels) *
@@ -240,6 +339,10 @@ uint64_t DramMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, u
   const uint64_t window = static_cast<uint64_t>(std::max<int64_t>(1, max_outstanding));
   p.window = static_cast<size_t>(std::min(window, p.count));
   window_ps_.assign(p.window, start_ps);
+  candidate_.valid = false;
+  probes_held_ = 0;
+  p.next_look =
+      skip_steady_ && log_ == nullptr && p.window >= kProbeWindowSlots ? look_every_ : kUnknown;
   if (channels_.size() == 1) {
     RunEvents<true>(p);
   } else {
@@ -257,8 +360,142 @@ void DramMemory::RunEvents(Progress& p) {
       Arrive<kOneChannel>(p, arrive_ps);
     } else {
       PickOn<kOneChannel>(p, kOneChannel ? 0 : EarliestChannel(), pick_ps);
+      if (p.picked == p.next_look) LookForSteadyRun<kOneChannel>(p);
     }
   }
+}
+
+// The whole state, relative to the current event time (see
+// DramChannel::AppendShape): the latest completion, the window's gates from
+// the next slot on, and every channel.
+void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const {
+  const uint64_t floor_ps = p.now_ps;
+  out.clear();
+  out.push_back(p.done_ps > floor_ps ? p.done_ps - floor_ps : 0);
+  for (size_t i = 0; i < p.window; ++i) {
+    const size_t slot = p.slot + i < p.window ? p.slot + i : p.slot + i - p.window;
+    const uint64_t ps = window_ps_[slot];
+    out.push_back(ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0));
+  }
+  for (const DramChannel& c : channels_) c.AppendShape(floor_ps, p.slot, p.window, out);
+}
+
+// A few words of the state that change with nearly every request outside a
+// steady run: the slow steps so far, the latest completion, window gates
+// spread over the window, and each channel's DramChannel::AppendProbe.
+void DramMemory::WriteProbe(const Progress& p, uint64_t slow_steps,
+                            std::vector<uint64_t>& out) const {
+  const uint64_t floor_ps = p.now_ps;
+  out.clear();
+  out.push_back(slow_steps);
+  out.push_back(p.done_ps > floor_ps ? p.done_ps - floor_ps : 0);
+  for (size_t i = 0; i < kProbeWindowSlots; ++i) {
+    const size_t ahead = i * p.window / kProbeWindowSlots;  // spread over the window
+    const size_t slot = p.slot + ahead < p.window ? p.slot + ahead : p.slot + ahead - p.window;
+    const uint64_t ps = window_ps_[slot];
+    out.push_back(ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0));
+  }
+  for (const DramChannel& c : channels_) c.AppendProbe(floor_ps, out);
+}
+
+// Every look_every_ picks. A due candidate whose whole state this look
+// repeats, moved by whole clocks, with no slow step in between, is a steady
+// run: skip the periods ahead that repeat it. Otherwise probe, and make
+// this look a candidate when its probe repeats an earlier one.
+template <bool kOneChannel>
+void DramMemory::LookForSteadyRun(Progress& p) {
+  p.next_look = p.picked + look_every_;
+  uint64_t slow_steps = 0;
+  for (const DramChannel& c : channels_) slow_steps += c.slow_steps();
+  Candidate& c = candidate_;
+  if (c.valid) {
+    if (p.picked - c.picked < c.period) return;
+    c.valid = false;
+    if (slow_steps == c.slow_steps && p.arrived - c.arrived == c.period) {
+      WriteShape(p, scratch_);
+      const uint64_t delta_ps = p.now_ps - c.floor_ps;
+      if (delta_ps > 0 && delta_ps % channels_.front().tck_ps() == 0 &&
+          SameShape(c.shape, scratch_, delta_ps)) {
+        const uint64_t periods = PeriodsAhead(p, c.period, delta_ps);
+        if (periods > 0) {
+          SkipPeriods<kOneChannel>(p, periods, delta_ps);
+          probes_held_ = 0;
+          return;
+        }
+      }
+    }
+  }
+  WriteProbe(p, slow_steps, scratch_);
+  size_t repeats = 0;  // looks back to an equal probe
+  for (size_t j = 1; j <= probes_held_ && repeats == 0; ++j) {
+    const size_t entry = (probe_next_ + kProbes - j) % kProbes;
+    if (std::equal(scratch_.begin(), scratch_.end(), probe_ring_.begin() + entry * probe_words_))
+      repeats = j;
+  }
+  std::copy(scratch_.begin(), scratch_.end(), probe_ring_.begin() + probe_next_ * probe_words_);
+  probe_next_ = (probe_next_ + 1) % kProbes;
+  probes_held_ = std::min(probes_held_ + 1, kProbes);
+  if (repeats == 0) return;
+  c.valid = true;
+  c.period = repeats * look_every_;
+  c.picked = p.picked;
+  c.arrived = p.arrived;
+  c.floor_ps = p.now_ps;
+  c.slow_steps = slow_steps;
+  WriteShape(p, c.shape);
+  c.stats.resize(channels_.size());
+  for (size_t i = 0; i < channels_.size(); ++i) c.stats[i] = channels_[i].stats();
+}
+
+// How many more periods repeat the last one: their requests keep the
+// coordinates of the requests a period earlier (the column does not wrap
+// into the next bank or row), at least one request of the transfer is left
+// after them, and every channel's last CAS, moved by that many periods, is
+// still before its refresh deadline.
+uint64_t DramMemory::PeriodsAhead(const Progress& p, uint64_t period, uint64_t delta_ps) const {
+  if (p.arrived >= p.count) return 0;
+  const uint64_t stride = map_.column_stride();
+  const uint64_t row_span = stride * map_.columns();
+  const uint64_t burst = p.next_address / map_.burst_bytes();
+  if (burst / stride % map_.columns() < period / stride) return 0;
+  uint64_t periods = ((burst / row_span + 1) * row_span - burst) / period;
+  periods = std::min(periods, (p.count - p.arrived - 1) / period);
+  for (const DramChannel& c : channels_) {
+    if (c.last_pick_ps() >= c.next_refresh_ps()) return 0;
+    periods = std::min(periods, (c.next_refresh_ps() - 1 - c.last_pick_ps()) / delta_ps);
+  }
+  return periods;
+}
+
+// Moves the state `periods` periods of the candidate ahead.
+template <bool kOneChannel>
+void DramMemory::SkipPeriods(Progress& p, uint64_t periods, uint64_t delta_ps) {
+  const uint64_t period = candidate_.period;
+  const uint64_t requests = periods * period;
+  const uint64_t moved_ps = periods * delta_ps;
+  const auto slots = static_cast<size_t>(requests % p.window);
+  const auto columns = static_cast<uint32_t>(periods * (period / map_.column_stride()));
+  for (size_t c = 0; c < channels_.size(); ++c) {
+    const DramStats per_period = StatsSince(channels_[c].stats(), candidate_.stats[c]);
+    channels_[c].Advance(candidate_.floor_ps, moved_ps, slots, p.window, columns, per_period,
+                         periods);
+  }
+  // Window slot i now holds what slot i - slots held, moved in time.
+  std::rotate(window_ps_.begin(), window_ps_.end() - static_cast<std::ptrdiff_t>(slots),
+              window_ps_.end());
+  for (uint64_t& ps : window_ps_) {
+    if (ps != kUnknown) ps += moved_ps;
+  }
+  p.now_ps += moved_ps;
+  p.done_ps += moved_ps;
+  p.slot = p.slot + slots < p.window ? p.slot + slots : p.slot + slots - p.window;
+  p.arrived += requests;
+  p.picked += requests;
+  skipped_requests_ += requests;
+  p.next_look = p.picked + look_every_;
+  p.next_address += requests * map_.burst_bytes();
+  p.next = map_.Decode(p.next_address);
+  for (size_t c = 0; c < channels_.size(); ++c) UpdatePick<kOneChannel>(c);
 }
 
 void DramMemory::Finish(uint64_t end_ps) {
@@ -274,9 +511,10 @@ const DramStats& DramMemory::stats() const {
 
 }  // namespace
 
-std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram, RowOpening opening) {
+std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram, RowOpening opening,
+                                               SteadyRuns steady) {
   if (dram.is_ideal()) return std::make_unique<IdealMemory>(dram);
-  return std::make_unique<DramMemory>(dram, opening);
+  return std::make_unique<DramMemory>(dram, opening, steady);
 }
 
 }  // namespace tritsim

@@ -41,15 +41,26 @@ class MemorySystem {
   // issues no commands. REQUIRES: before the first Transfer.
   virtual void SetCommandLog(DramCommandLog* /*log*/) {}
 
+  // Requests moved over in steady runs instead of simulated one by one
+  // (counted in stats() all the same); 0 for the ideal memory.
+  virtual uint64_t skipped_requests() const { return 0; }
+
   virtual const DramStats& stats() const = 0;
   virtual uint64_t burst_bytes() const = 0;          // bytes per request, all channels alike
   virtual double peak_bytes_per_second() const = 0;  // all channels, no refresh
 };
 
+// Whether a transfer's steady runs of row hits are moved over a whole
+// number of periods at once (kSkip, the default: the same results, exactly,
+// in far fewer steps; see memory_system.cc) or simulated request by request
+// (kSimulate: for the tests that prove the two agree).
+enum class SteadyRuns : uint8_t { kSkip, kSimulate };
+
 // REQUIRES: `dram` validated by the config loader (preset applied).
 // `opening` is for tests that compare against in-order row opening; the
 // simulator always opens rows ahead.
 std::unique_ptr<MemorySystem> MakeMemorySystem(const DramConfig& dram,
-                                               RowOpening opening = RowOpening::kAhead);
+                                               RowOpening opening = RowOpening::kAhead,
+                                               SteadyRuns steady = SteadyRuns::kSkip);
 
 }  // namespace tritsim
