@@ -376,30 +376,35 @@ size_t SlotFrom(size_t tag, size_t slot, size_t window) {
 
 void DramChannel::AppendShape(uint64_t floor_ps, size_t slot, size_t window,
                               std::vector<uint64_t>& out) const {
+  constexpr size_t kChannelWords = 8, kGroupWords = 2, kBankWords = 3, kQueuedWords = 4;
   const size_t groups = banks_.size() / banks_per_group_;
-  out.push_back(queued_);
-  out.push_back(unopened_);
-  out.push_back(Exact(pick_ok_ps_, floor_ps));
-  out.push_back(Aged(ahead_retry_ps_, floor_ps));
-  out.push_back(Aged(cas_any_ok_ps_, floor_ps));
-  out.push_back(Aged(rd_after_wr_any_ok_ps_, floor_ps));
-  out.push_back(Aged(rd_data_ok_ps_, floor_ps));
-  out.push_back(Aged(wr_data_ok_ps_, floor_ps));
+  const size_t start = out.size();
+  out.resize(start + kChannelWords + kGroupWords * groups + kBankWords * banks_.size() +
+             kQueuedWords * queued_);
+  uint64_t* w = out.data() + start;  // written in place: a look runs often
+  *w++ = queued_;
+  *w++ = unopened_;
+  *w++ = Exact(pick_ok_ps_, floor_ps);
+  *w++ = Aged(ahead_retry_ps_, floor_ps);
+  *w++ = Aged(cas_any_ok_ps_, floor_ps);
+  *w++ = Aged(rd_after_wr_any_ok_ps_, floor_ps);
+  *w++ = Aged(rd_data_ok_ps_, floor_ps);
+  *w++ = Aged(wr_data_ok_ps_, floor_ps);
   for (size_t g = 0; g < groups; ++g) {
-    out.push_back(Aged(cas_group_ok_ps_[g], floor_ps));
-    out.push_back(Aged(rd_after_wr_group_ok_ps_[g], floor_ps));
+    *w++ = Aged(cas_group_ok_ps_[g], floor_ps);
+    *w++ = Aged(rd_after_wr_group_ok_ps_[g], floor_ps);
   }
   for (const Bank& b : banks_) {
-    out.push_back(b.open_row);
-    out.push_back(uint64_t{b.queued_hits} << 8 | static_cast<uint64_t>(b.ahead));
-    out.push_back(Aged(b.pre_ok_ps, floor_ps));
+    *w++ = b.open_row;
+    *w++ = uint64_t{b.queued_hits} << 8 | static_cast<uint64_t>(b.ahead);
+    *w++ = Aged(b.pre_ok_ps, floor_ps);
   }
   for (size_t age = 0; age < queued_; ++age) {
     const DramRequest& r = At(age);
-    out.push_back(r.row);
-    out.push_back(Exact(r.arrival_ps, floor_ps));
-    out.push_back(uint64_t{r.bank} << 1 | uint64_t{r.is_write});
-    out.push_back(SlotFrom(r.tag, slot, window));
+    *w++ = r.row;
+    *w++ = Exact(r.arrival_ps, floor_ps);
+    *w++ = uint64_t{r.bank} << 1 | uint64_t{r.is_write};
+    *w++ = SlotFrom(r.tag, slot, window);
   }
 }
 

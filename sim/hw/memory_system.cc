@@ -370,12 +370,11 @@ void DramMemory::RunEvents(Progress& p) {
 // the next slot on, and every channel.
 void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const {
   const uint64_t floor_ps = p.now_ps;
-  out.clear();
-  out.push_back(p.done_ps > floor_ps ? p.done_ps - floor_ps : 0);
-  for (size_t i = 0; i < p.window; ++i) {
-    const size_t slot = p.slot + i < p.window ? p.slot + i : p.slot + i - p.window;
+  out.resize(1 + p.window);
+  out[0] = p.done_ps > floor_ps ? p.done_ps - floor_ps : 0;
+  for (size_t i = 0, slot = p.slot; i < p.window; ++i, slot = slot + 1 == p.window ? 0 : slot + 1) {
     const uint64_t ps = window_ps_[slot];
-    out.push_back(ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0));
+    out[1 + i] = ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0);
   }
   for (const DramChannel& c : channels_) c.AppendShape(floor_ps, p.slot, p.window, out);
 }
