@@ -408,11 +408,12 @@ void DramChannel::AppendShape(uint64_t floor_ps, size_t slot, size_t window,
   }
 }
 
-void DramChannel::AppendProbe(uint64_t floor_ps, std::vector<uint64_t>& out) const {
-  out.push_back(queued_);
-  out.push_back(Exact(pick_ok_ps_, floor_ps));
-  out.push_back(queued_ > 0 ? Exact(queue_[head_].arrival_ps, floor_ps) : kNever);
-  out.push_back(Clamped(cas_any_ok_ps_, floor_ps));
+uint64_t* DramChannel::WriteProbe(uint64_t floor_ps, uint64_t* out) const {
+  out[0] = queued_;
+  out[1] = Exact(pick_ok_ps_, floor_ps);
+  out[2] = queued_ > 0 ? Exact(queue_[head_].arrival_ps, floor_ps) : kNever;
+  out[3] = Clamped(cas_any_ok_ps_, floor_ps);
+  return out + kProbeWords;
 }
 
 void DramChannel::Advance(uint64_t floor_ps, uint64_t delta_ps, size_t tag_shift, size_t window,

@@ -164,7 +164,10 @@ class DramChannel {
   // to that pick) instead of at the pick, as a controller deciding every
   // clock would. REQUIRES: now_ps not earlier than the last pick or arrival.
   void Arrived(uint64_t now_ps) {
-    if (open_ahead_ && now_ps < pick_ok_ps_) ArrivedSlow(now_ps);
+    // ArrivedSlow's two steps, tested here: most arrivals need neither.
+    const bool refresh_due = now_ps >= next_refresh_ps_;
+    const bool rows_to_open = unopened_ > 0 && pick_ok_ps_ >= ahead_retry_ps_;
+    if (open_ahead_ && now_ps < pick_ok_ps_ && (refresh_due || rows_to_open)) ArrivedSlow(now_ps);
   }
 
   // No command this channel issues from now on is earlier than this, given
@@ -203,7 +206,8 @@ class DramChannel {
   // A few words of the shape that change with nearly every request outside
   // a steady run (queue length, last pick, oldest arrival, CAS constraint).
   static constexpr size_t kProbeWords = 4;
-  void AppendProbe(uint64_t floor_ps, std::vector<uint64_t>& out) const;
+  // Writes them at `out`; returns the end.
+  uint64_t* WriteProbe(uint64_t floor_ps, uint64_t* out) const;
   // Moves the channel `times` periods ahead along a steady run whose first
   // look was at `floor_ps`: every time at or after that floor (written in
   // the period) by delta_ps, while earlier ones stay, queued tags by tag_shift window slots,

@@ -136,7 +136,7 @@ class DramMemory final : public MemorySystem {
   template <bool kOneChannel>
   void LookForSteadyRun(Progress& p);
   void WriteShape(const Progress& p, std::vector<uint64_t>& out) const;
-  void WriteProbe(const Progress& p, uint64_t slow_steps, std::vector<uint64_t>& out) const;
+  void WriteProbe(const Progress& p, uint64_t slow_steps, uint64_t* out) const;  // probe_words_
   uint64_t PeriodsAhead(const Progress& p, uint64_t period, uint64_t delta_ps) const;
   template <bool kOneChannel>
   void SkipPeriods(Progress& p, uint64_t periods, uint64_t delta_ps);
@@ -165,9 +165,9 @@ class DramMemory final : public MemorySystem {
   mutable DramStats total_;
   // Steady runs (see the file comment): a look every look_every_ picks
   // writes a cheap probe of the state; the last kProbes probes are kept in
-  // a ring (probe_words_ each). A probe equal to one j looks earlier makes
-  // a candidate of period j x look_every_, whose whole state is compared a
-  // period later.
+  // a ring (probe_words_ each; the newest is written over the oldest). A probe equal to one j looks
+  // earlier makes a candidate of period j x look_every_, whose whole state is compared a period
+  // later.
   static constexpr size_t kProbes = 8;
   bool skip_steady_ = true;
   uint64_t look_every_ = 1;  // a whole number of column strides
@@ -177,7 +177,7 @@ class DramMemory final : public MemorySystem {
   size_t probe_next_ = 0;  // ring entry the next probe goes to
   Candidate candidate_;
   uint64_t skipped_requests_ = 0;
-  std::vector<uint64_t> scratch_;   // the probe, then the shape, of this look
+  std::vector<uint64_t> scratch_;   // the shape of this look
   DramCommandLog* log_ = nullptr;   // null: no command log
   uint64_t transfer_start_ps_ = 0;  // start_ps of the current Transfer
 };
@@ -381,20 +381,18 @@ void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const
 
 // A few words of the state that change with nearly every request outside a
 // steady run: the slow steps so far, the latest completion, window gates
-// spread over the window, and each channel's DramChannel::AppendProbe.
-void DramMemory::WriteProbe(const Progress& p, uint64_t slow_steps,
-                            std::vector<uint64_t>& out) const {
+// spread over the window, and each channel's DramChannel::WriteProbe.
+void DramMemory::WriteProbe(const Progress& p, uint64_t slow_steps, uint64_t* out) const {
   const uint64_t floor_ps = p.now_ps;
-  out.clear();
-  out.push_back(slow_steps);
-  out.push_back(p.done_ps > floor_ps ? p.done_ps - floor_ps : 0);
+  *out++ = slow_steps;
+  *out++ = p.done_ps > floor_ps ? p.done_ps - floor_ps : 0;
   for (size_t i = 0; i < kProbeWindowSlots; ++i) {
     const size_t ahead = i * p.window / kProbeWindowSlots;  // spread over the window
     const size_t slot = p.slot + ahead < p.window ? p.slot + ahead : p.slot + ahead - p.window;
     const uint64_t ps = window_ps_[slot];
-    out.push_back(ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0));
+    *out++ = ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0);
   }
-  for (const DramChannel& c : channels_) c.AppendProbe(floor_ps, out);
+  for (const DramChannel& c : channels_) out = c.WriteProbe(floor_ps, out);
 }
 
 // Every look_every_ picks. A due candidate whose whole state this look
@@ -424,14 +422,15 @@ void DramMemory::LookForSteadyRun(Progress& p) {
       }
     }
   }
-  WriteProbe(p, slow_steps, scratch_);
+  // The probe goes straight into its ring entry, then meets the older ones.
+  const auto probe = probe_ring_.begin() + static_cast<std::ptrdiff_t>(probe_next_ * probe_words_);
+  WriteProbe(p, slow_steps, &*probe);
   size_t repeats = 0;  // looks back to an equal probe
-  for (size_t j = 1; j <= probes_held_ && repeats == 0; ++j) {
+  for (size_t j = 1; j <= probes_held_ && j < kProbes && repeats == 0; ++j) {
     const size_t entry = (probe_next_ + kProbes - j) % kProbes;
-    if (std::equal(scratch_.begin(), scratch_.end(), probe_ring_.begin() + entry * probe_words_))
-      repeats = j;
+    const auto older = probe_ring_.begin() + static_cast<std::ptrdiff_t>(entry * probe_words_);
+    if (std::equal(probe, probe + static_cast<std::ptrdiff_t>(probe_words_), older)) repeats = j;
   }
-  std::copy(scratch_.begin(), scratch_.end(), probe_ring_.begin() + probe_next_ * probe_words_);
   probe_next_ = (probe_next_ + 1) % kProbes;
   probes_held_ = std::min(probes_held_ + 1, kProbes);
   if (repeats == 0) return;
