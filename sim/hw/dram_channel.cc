@@ -116,6 +116,7 @@ DramCommandTimes DramChannel::Plan(const DramRequest& r, uint64_t now_ps) const 
 }
 
 void DramChannel::CountAhead(Bank& b, DramCommandTimes& reported) {
+  ++slow_steps_;  // the first column command to a row opened ahead ends the bank's "ahead"
   ++(b.ahead == Ahead::kConflict ? stats_.row_conflicts : stats_.row_misses);
   if (reported.pre_ps == DramCommandTimes::kNoCommand) reported.pre_ps = b.ahead_pre_ps;
   if (reported.act_ps == DramCommandTimes::kNoCommand) reported.act_ps = b.ahead_act_ps;
@@ -342,7 +343,7 @@ DramPick DramChannel::PickAny(uint64_t now_ps) {
 
 namespace {
 
-// Writers of AppendShape. A channel's state outlives the transfer that
+// Writers of WriteShape. A channel's state outlives the transfer that
 // wrote it, and the next transfer may start before this one's last event,
 // so a time before the floor is not dead for good. `Aged` writes a time at
 // or after the floor relative to it, an earlier one as itself, tagged with
@@ -374,14 +375,15 @@ size_t SlotFrom(size_t tag, size_t slot, size_t window) {
 
 }  // namespace
 
-void DramChannel::AppendShape(uint64_t floor_ps, size_t slot, size_t window,
-                              std::vector<uint64_t>& out) const {
+size_t DramChannel::ShapeWords() const {
   constexpr size_t kChannelWords = 8, kGroupWords = 2, kBankWords = 3, kQueuedWords = 4;
   const size_t groups = banks_.size() / banks_per_group_;
-  const size_t start = out.size();
-  out.resize(start + kChannelWords + kGroupWords * groups + kBankWords * banks_.size() +
-             kQueuedWords * queued_);
-  uint64_t* w = out.data() + start;  // written in place: a look runs often
+  return kChannelWords + kGroupWords * groups + kBankWords * banks_.size() + kQueuedWords * queued_;
+}
+
+uint64_t* DramChannel::WriteShape(uint64_t floor_ps, size_t slot, size_t window,
+                                  uint64_t* w) const {
+  const size_t groups = banks_.size() / banks_per_group_;
   *w++ = queued_;
   *w++ = unopened_;
   *w++ = Exact(pick_ok_ps_, floor_ps);
@@ -406,6 +408,7 @@ void DramChannel::AppendShape(uint64_t floor_ps, size_t slot, size_t window,
     *w++ = uint64_t{r.bank} << 1 | uint64_t{r.is_write};
     *w++ = SlotFrom(r.tag, slot, window);
   }
+  return w;
 }
 
 uint64_t* DramChannel::WriteProbe(uint64_t floor_ps, uint64_t* out) const {

@@ -184,14 +184,16 @@ class DramChannel {
 
   // ---- Steady runs (memory_system.cc skips whole periods of them). ----
   // Counts the steps whose timing may depend on the refresh deadline or on
-  // rows being opened: general picks, passes opening rows ahead, refreshes.
-  // A stretch with none of them only streams ready row hits.
+  // rows being opened: general picks, passes opening rows ahead, refreshes,
+  // PRE and ACT, requests queued for a row not open, and the first column
+  // command to a row opened ahead. A stretch with none of them only streams
+  // ready row hits to rows that were open before it.
   uint64_t slow_steps() const { return slow_steps_; }
   // The column command of the last pick (every pick of a stretch without
   // slow steps is a CAS, so this is the latest command of the stretch).
   uint64_t last_pick_ps() const { return pick_ok_ps_; }
   uint64_t next_refresh_ps() const { return next_refresh_ps_; }
-  // Appends to `out` everything the channel's future decisions depend on,
+  // Writes everything the channel's future decisions depend on,
   // relative to `floor_ps` (the caller's current event time): times at or
   // after the floor as their distance from it, earlier "allowed from" times
   // as themselves with kBeforeFloor set, times compared with each other
@@ -202,7 +204,9 @@ class DramChannel {
   // period moved by the difference of the floors, until the refresh
   // deadline.
   static constexpr uint64_t kBeforeFloor = uint64_t{1} << 63;
-  void AppendShape(uint64_t floor_ps, size_t slot, size_t window, std::vector<uint64_t>& out) const;
+  // Writes ShapeWords() words at `out`; returns the end.
+  uint64_t* WriteShape(uint64_t floor_ps, size_t slot, size_t window, uint64_t* out) const;
+  size_t ShapeWords() const;
   // A few words of the shape that change with nearly every request outside
   // a steady run (queue length, last pick, oldest arrival, CAS constraint).
   static constexpr size_t kProbeWords = 4;

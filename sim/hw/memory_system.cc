@@ -21,7 +21,7 @@
 // clocks except the refresh deadline, and the requests' coordinates repeat
 // with the period until the column wraps into the next bank or row. So
 // when two looks at the state one period apart agree (after the relative
-// encoding of DramChannel::AppendShape), only ready row hits were streamed
+// encoding of DramChannel::WriteShape), only ready row hits were streamed
 // in between (no slow step: no refresh, no general pick, no row opened),
 // the shift is a whole number of clocks, and the next k periods' requests
 // repeat the last period's coordinates and end before every channel's
@@ -366,17 +366,20 @@ void DramMemory::RunEvents(Progress& p) {
 }
 
 // The whole state, relative to the current event time (see
-// DramChannel::AppendShape): the latest completion, the window's gates from
+// DramChannel::WriteShape): the latest completion, the window's gates from
 // the next slot on, and every channel.
 void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const {
   const uint64_t floor_ps = p.now_ps;
-  out.resize(1 + p.window);
-  out[0] = p.done_ps > floor_ps ? p.done_ps - floor_ps : 0;
+  size_t words = 1 + p.window;
+  for (const DramChannel& c : channels_) words += c.ShapeWords();
+  out.resize(words);  // mostly the size it had: nothing to fill
+  uint64_t* w = out.data();
+  *w++ = p.done_ps > floor_ps ? p.done_ps - floor_ps : 0;
   for (size_t i = 0, slot = p.slot; i < p.window; ++i, slot = slot + 1 == p.window ? 0 : slot + 1) {
     const uint64_t ps = window_ps_[slot];
-    out[1 + i] = ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0);
+    *w++ = ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0);
   }
-  for (const DramChannel& c : channels_) c.AppendShape(floor_ps, p.slot, p.window, out);
+  for (const DramChannel& c : channels_) w = c.WriteShape(floor_ps, p.slot, p.window, w);
 }
 
 // A few words of the state that change with nearly every request outside a
@@ -405,11 +408,13 @@ void DramMemory::LookForSteadyRun(Progress& p) {
   uint64_t slow_steps = 0;
   for (const DramChannel& c : channels_) slow_steps += c.slow_steps();
   Candidate& c = candidate_;
+  bool shape_written = false;  // scratch_ holds this look's shape
   if (c.valid) {
     if (p.picked - c.picked < c.period) return;
     c.valid = false;
     if (slow_steps == c.slow_steps && p.arrived - c.arrived == c.period) {
       WriteShape(p, scratch_);
+      shape_written = true;
       const uint64_t delta_ps = p.now_ps - c.floor_ps;
       if (delta_ps > 0 && delta_ps % channels_.front().tck_ps() == 0 &&
           SameShape(c.shape, scratch_, delta_ps)) {
@@ -440,7 +445,11 @@ void DramMemory::LookForSteadyRun(Progress& p) {
   c.arrived = p.arrived;
   c.floor_ps = p.now_ps;
   c.slow_steps = slow_steps;
-  WriteShape(p, c.shape);
+  if (shape_written) {
+    c.shape.swap(scratch_);
+  } else {
+    WriteShape(p, c.shape);
+  }
   c.stats.resize(channels_.size());
   for (size_t i = 0; i < channels_.size(); ++i) c.stats[i] = channels_[i].stats();
 }
