@@ -416,6 +416,16 @@ uint64_t* DramChannel::WriteProbe(uint64_t floor_ps, uint64_t* out) const {
   out[1] = Exact(pick_ok_ps_, floor_ps);
   out[2] = queued_ > 0 ? Exact(queue_[head_].arrival_ps, floor_ps) : kNever;
   out[3] = Clamped(cas_any_ok_ps_, floor_ps);
+  // The queued hits of the oldest and the youngest request's banks: they
+  // differ from look to look while one row's requests drain and the next
+  // row's arrive.
+  out[4] = kNever;
+  out[5] = kNever;
+  if (queued_ > 0) {
+    const uint32_t oldest = At(0).bank, youngest = At(queued_ - 1).bank;
+    out[4] = uint64_t{oldest} << 32 | banks_[oldest].queued_hits;
+    out[5] = uint64_t{youngest} << 32 | banks_[youngest].queued_hits;
+  }
   return out + kProbeWords;
 }
 

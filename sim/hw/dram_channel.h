@@ -208,8 +208,9 @@ class DramChannel {
   uint64_t* WriteShape(uint64_t floor_ps, size_t slot, size_t window, uint64_t* out) const;
   size_t ShapeWords() const;
   // A few words of the shape that change with nearly every request outside
-  // a steady run (queue length, last pick, oldest arrival, CAS constraint).
-  static constexpr size_t kProbeWords = 4;
+  // a steady run (queue length, last pick, oldest arrival, CAS constraint,
+  // queued hits at the two ends of the queue).
+  static constexpr size_t kProbeWords = 6;
   // Writes them at `out`; returns the end.
   uint64_t* WriteProbe(uint64_t floor_ps, uint64_t* out) const;
   // Moves the channel `times` periods ahead along a steady run whose first

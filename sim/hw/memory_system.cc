@@ -137,6 +137,7 @@ class DramMemory final : public MemorySystem {
   void LookForSteadyRun(Progress& p);
   void WriteShape(const Progress& p, std::vector<uint64_t>& out) const;
   void WriteProbe(const Progress& p, uint64_t slow_steps, uint64_t* out) const;  // probe_words_
+  uint64_t RequestsLeftInRun(const Progress& p) const;
   uint64_t PeriodsAhead(const Progress& p, uint64_t period, uint64_t delta_ps) const;
   template <bool kOneChannel>
   void SkipPeriods(Progress& p, uint64_t periods, uint64_t delta_ps);
@@ -438,7 +439,9 @@ void DramMemory::LookForSteadyRun(Progress& p) {
   }
   probe_next_ = (probe_next_ + 1) % kProbes;
   probes_held_ = std::min(probes_held_ + 1, kProbes);
-  if (repeats == 0) return;
+  // A candidate pays off only if, after its check a period from now, at
+  // least one more period of the run is left to skip.
+  if (repeats == 0 || RequestsLeftInRun(p) < 2 * repeats * look_every_) return;
   c.valid = true;
   c.period = repeats * look_every_;
   c.picked = p.picked;
@@ -454,19 +457,24 @@ void DramMemory::LookForSteadyRun(Progress& p) {
   for (size_t i = 0; i < channels_.size(); ++i) c.stats[i] = channels_[i].stats();
 }
 
+// Requests from the next arrival up to the column wrapping into the next
+// bank or row, less one, and no more than the transfer has left less one.
+uint64_t DramMemory::RequestsLeftInRun(const Progress& p) const {
+  if (p.arrived >= p.count) return 0;
+  const uint64_t row_span = map_.column_stride() * map_.columns();
+  const uint64_t burst = p.next_address / map_.burst_bytes();
+  return std::min((burst / row_span + 1) * row_span - burst, p.count - p.arrived - 1);
+}
+
 // How many more periods repeat the last one: their requests keep the
 // coordinates of the requests a period earlier (the column does not wrap
 // into the next bank or row), at least one request of the transfer is left
 // after them, and every channel's last CAS, moved by that many periods, is
 // still before its refresh deadline.
 uint64_t DramMemory::PeriodsAhead(const Progress& p, uint64_t period, uint64_t delta_ps) const {
-  if (p.arrived >= p.count) return 0;
-  const uint64_t stride = map_.column_stride();
-  const uint64_t row_span = stride * map_.columns();
   const uint64_t burst = p.next_address / map_.burst_bytes();
-  if (burst / stride % map_.columns() < period / stride) return 0;
-  uint64_t periods = ((burst / row_span + 1) * row_span - burst) / period;
-  periods = std::min(periods, (p.count - p.arrived - 1) / period);
+  if (burst / map_.column_stride() % map_.columns() < period / map_.column_stride()) return 0;
+  uint64_t periods = RequestsLeftInRun(p) / period;
   for (const DramChannel& c : channels_) {
     if (c.last_pick_ps() >= c.next_refresh_ps()) return 0;
     periods = std::min(periods, (c.next_refresh_ps() - 1 - c.last_pick_ps()) / delta_ps);
