@@ -145,7 +145,7 @@ void DramChannel::QueuedUnopened(const DramRequest& r, size_t age) {
   ++slow_steps_;
   ++unopened_;
   unopened_from_ = std::min(unopened_from_, age);
-  ahead_retry_ps_ = std::min(ahead_retry_ps_, AheadPs(r, 0));
+  if (ahead_retry_ps_ > 0) ahead_retry_ps_ = std::min(ahead_retry_ps_, AheadPs(r, 0));
 }
 
 // Queued requests to `row` of `bank` become hits.
@@ -443,9 +443,9 @@ void DramChannel::Advance(uint64_t floor_ps, uint64_t delta_ps, size_t tag_shift
     rd_after_wr_group_ok_ps_[g] = Moved(rd_after_wr_group_ok_ps_[g], floor_ps, delta_ps);
   }
   for (Bank& b : banks_) b.pre_ok_ps = Moved(b.pre_ok_ps, floor_ps, delta_ps);
-  // A hint that may always be lower (the scans it starts skip hits); every
-  // pick of the skipped periods lowered it.
-  unopened_from_ = 0;
+  // A hint: requests younger than it may need a row, older ones are hits.
+  // Any lower value is also right (the scans it starts skip hits).
+  unopened_from_ = unopened_ == 0 ? queued_ : 0;
   for (size_t age = 0; age < queued_; ++age) {
     DramRequest& r = queue_[Slot(age)];
     r.arrival_ps += delta_ps;
