@@ -340,6 +340,9 @@ uint64_t DramMemory::Transfer(uint64_t address, uint64_t bytes, bool is_write, u
   const uint64_t window = static_cast<uint64_t>(std::max<int64_t>(1, max_outstanding));
   p.window = static_cast<size_t>(std::min(window, p.count));
   window_ps_.assign(p.window, start_ps);
+  // Steady runs start afresh in every transfer; none are looked for with a
+  // command log (every command is written out) or a window narrower than a
+  // probe's window slots (such transfers are short or latency-bound anyway).
   candidate_.valid = false;
   probes_held_ = 0;
   p.next_look =
