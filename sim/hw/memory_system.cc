@@ -165,10 +165,10 @@ class DramMemory final : public MemorySystem {
   std::vector<uint32_t> tree_channel_;
   mutable DramStats total_;
   // Steady runs (see the file comment): a look every look_every_ picks
-  // writes a cheap probe of the state; the last kProbes probes are kept in
-  // a ring (probe_words_ each; the newest is written over the oldest). A probe equal to one j looks
-  // earlier makes a candidate of period j x look_every_, whose whole state is compared a period
-  // later.
+  // writes a cheap probe of the state into a ring of kProbes entries
+  // (probe_words_ each; the newest over the oldest). A probe equal to the
+  // one j looks earlier makes a candidate of period j x look_every_, whose
+  // whole state is compared a period later.
   static constexpr size_t kProbes = 8;
   bool skip_steady_ = true;
   uint64_t look_every_ = 1;  // a whole number of column strides
@@ -193,7 +193,7 @@ size_t RoundUpToPowerOfTwo(size_t n) {
   return p;
 }
 
-// Window slots in a probe (the most recent completions and gates).
+// Window slots in a probe, spread evenly over the window.
 constexpr size_t kProbeWindowSlots = 8;
 // Probe words per request a look may cost on average: a look every
 // probe_words_ / kProbeWordsPerRequest requests or more.
