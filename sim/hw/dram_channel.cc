@@ -358,11 +358,6 @@ uint64_t Aged(uint64_t ps, uint64_t floor_ps) {
 uint64_t Exact(uint64_t ps, uint64_t floor_ps) {
   return (ps - floor_ps) & ~DramChannel::kBeforeFloor;  // wraps below the floor: still exact
 }
-// For the probe: any time before the floor as 0.
-uint64_t Clamped(uint64_t ps, uint64_t floor_ps) {
-  if (ps == DramChannel::kNever) return ps;
-  return ps > floor_ps ? ps - floor_ps : 0;
-}
 // Advance's counterpart of Aged: a time at or after the floor of the look
 // that started the period was written in the period and moves with it; an
 // earlier one was not, and stays.
@@ -375,31 +370,37 @@ size_t SlotFrom(size_t tag, size_t slot, size_t window) {
 
 }  // namespace
 
+template <class Channel, class Visit>
+void DramChannel::ForEachColumnTime(Channel& c, Visit&& visit) {
+  visit(c.ahead_retry_ps_);
+  visit(c.cas_any_ok_ps_);
+  visit(c.rd_after_wr_any_ok_ps_);
+  visit(c.rd_data_ok_ps_);
+  visit(c.wr_data_ok_ps_);
+  for (size_t g = 0; g < c.banks_.size() / c.banks_per_group_; ++g) {
+    visit(c.cas_group_ok_ps_[g]);
+    visit(c.rd_after_wr_group_ok_ps_[g]);
+  }
+  for (auto& b : c.banks_) visit(b.pre_ok_ps);
+}
+
 size_t DramChannel::ShapeWords() const {
-  constexpr size_t kChannelWords = 8, kGroupWords = 2, kBankWords = 3, kQueuedWords = 4;
+  constexpr size_t kChannelWords = 3, kColumnTimes = 5, kGroupTimes = 2, kBankWords = 3;
+  constexpr size_t kQueuedWords = 4;
   const size_t groups = banks_.size() / banks_per_group_;
-  return kChannelWords + kGroupWords * groups + kBankWords * banks_.size() + kQueuedWords * queued_;
+  return kChannelWords + kColumnTimes + kGroupTimes * groups + kBankWords * banks_.size() +
+         kQueuedWords * queued_;
 }
 
 uint64_t* DramChannel::WriteShape(uint64_t floor_ps, size_t slot, size_t window,
                                   uint64_t* w) const {
-  const size_t groups = banks_.size() / banks_per_group_;
   *w++ = queued_;
   *w++ = unopened_;
   *w++ = Exact(pick_ok_ps_, floor_ps);
-  *w++ = Aged(ahead_retry_ps_, floor_ps);
-  *w++ = Aged(cas_any_ok_ps_, floor_ps);
-  *w++ = Aged(rd_after_wr_any_ok_ps_, floor_ps);
-  *w++ = Aged(rd_data_ok_ps_, floor_ps);
-  *w++ = Aged(wr_data_ok_ps_, floor_ps);
-  for (size_t g = 0; g < groups; ++g) {
-    *w++ = Aged(cas_group_ok_ps_[g], floor_ps);
-    *w++ = Aged(rd_after_wr_group_ok_ps_[g], floor_ps);
-  }
+  ForEachColumnTime(*this, [&](uint64_t ps) { *w++ = Aged(ps, floor_ps); });
   for (const Bank& b : banks_) {
     *w++ = b.open_row;
     *w++ = uint64_t{b.queued_hits} << 8 | static_cast<uint64_t>(b.ahead);
-    *w++ = Aged(b.pre_ok_ps, floor_ps);
   }
   for (size_t age = 0; age < queued_; ++age) {
     const DramRequest& r = At(age);
@@ -415,7 +416,7 @@ uint64_t* DramChannel::WriteProbe(uint64_t floor_ps, uint64_t* out) const {
   out[0] = queued_;
   out[1] = Exact(pick_ok_ps_, floor_ps);
   out[2] = queued_ > 0 ? Exact(queue_[head_].arrival_ps, floor_ps) : kNever;
-  out[3] = Clamped(cas_any_ok_ps_, floor_ps);
+  out[3] = SinceFloor(cas_any_ok_ps_, floor_ps);
   // The queued hits of the oldest and the youngest request's banks: they
   // differ from look to look while one row's requests drain and the next
   // row's arrive.
@@ -431,18 +432,8 @@ uint64_t* DramChannel::WriteProbe(uint64_t floor_ps, uint64_t* out) const {
 
 void DramChannel::Advance(uint64_t floor_ps, uint64_t delta_ps, size_t tag_shift, size_t window,
                           uint32_t column_shift, const DramStats& per_period, uint64_t times) {
-  const size_t groups = banks_.size() / banks_per_group_;
   pick_ok_ps_ += delta_ps;
-  ahead_retry_ps_ = Moved(ahead_retry_ps_, floor_ps, delta_ps);
-  cas_any_ok_ps_ = Moved(cas_any_ok_ps_, floor_ps, delta_ps);
-  rd_after_wr_any_ok_ps_ = Moved(rd_after_wr_any_ok_ps_, floor_ps, delta_ps);
-  rd_data_ok_ps_ = Moved(rd_data_ok_ps_, floor_ps, delta_ps);
-  wr_data_ok_ps_ = Moved(wr_data_ok_ps_, floor_ps, delta_ps);
-  for (size_t g = 0; g < groups; ++g) {
-    cas_group_ok_ps_[g] = Moved(cas_group_ok_ps_[g], floor_ps, delta_ps);
-    rd_after_wr_group_ok_ps_[g] = Moved(rd_after_wr_group_ok_ps_[g], floor_ps, delta_ps);
-  }
-  for (Bank& b : banks_) b.pre_ok_ps = Moved(b.pre_ok_ps, floor_ps, delta_ps);
+  ForEachColumnTime(*this, [&](uint64_t& ps) { ps = Moved(ps, floor_ps, delta_ps); });
   // A hint: requests younger than it may need a row, older ones are hits.
   // Any lower value is also right (the scans it starts skip hits).
   unopened_from_ = unopened_ == 0 ? queued_ : 0;
@@ -453,15 +444,7 @@ void DramChannel::Advance(uint64_t floor_ps, uint64_t delta_ps, size_t tag_shift
     const size_t tag = r.tag + tag_shift;
     r.tag = static_cast<uint32_t>(tag >= window ? tag - window : tag);
   }
-  stats_.reads += times * per_period.reads;
-  stats_.writes += times * per_period.writes;
-  stats_.row_hits += times * per_period.row_hits;
-  stats_.row_misses += times * per_period.row_misses;
-  stats_.row_conflicts += times * per_period.row_conflicts;
-  stats_.activates += times * per_period.activates;
-  stats_.refreshes += times * per_period.refreshes;
-  stats_.busy_ps += times * per_period.busy_ps;
-  stats_.refresh_ps += times * per_period.refresh_ps;
+  for (uint64_t DramStats::*field : kDramStatsFields) stats_.*field += times * per_period.*field;
 }
 
 void DramChannel::Finish(uint64_t end_ps) {

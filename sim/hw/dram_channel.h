@@ -204,6 +204,13 @@ class DramChannel {
   // period moved by the difference of the floors, until the refresh
   // deadline.
   static constexpr uint64_t kBeforeFloor = uint64_t{1} << 63;
+  // A time relative to `floor_ps`, 0 at or before it; kNever stays itself
+  // (for probes and the caller's window gates, where an earlier time only
+  // means "no constraint").
+  static uint64_t SinceFloor(uint64_t ps, uint64_t floor_ps) {
+    if (ps == kNever) return ps;
+    return ps > floor_ps ? ps - floor_ps : 0;
+  }
   // Writes ShapeWords() words at `out`; returns the end.
   uint64_t* WriteShape(uint64_t floor_ps, size_t slot, size_t window, uint64_t* out) const;
   size_t ShapeWords() const;
@@ -272,6 +279,11 @@ class DramChannel {
     if (--banks_[r.bank].queued_hits == 0 && unopened_ > 0) ahead_retry_ps_ = 0;
   }
   uint64_t AheadPs(const DramRequest& r, uint64_t after_ps) const;
+  // Calls visit(t) on every column-side "allowed from" time: what the
+  // row-hit path reads and writes, so what a look's shape holds (Aged) and
+  // what Advance moves. Channel is DramChannel or const DramChannel.
+  template <class Channel, class Visit>
+  static void ForEachColumnTime(Channel& c, Visit&& visit);
   void OpenRow(uint32_t bank, uint64_t row);
   void CloseRow(Bank& b);
   // Opening rows ahead (see the file comment); commands in [now_ps, horizon_ps].

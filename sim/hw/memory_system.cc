@@ -42,19 +42,13 @@ namespace tritsim {
 namespace {
 
 constexpr uint64_t kUnknown = ~uint64_t{0};
+static_assert(kUnknown == DramChannel::kNever,
+              "window gates are written with DramChannel::SinceFloor");
 constexpr double kPsPerSecond = 1e12;
 constexpr uint64_t kDdrTransfersPerCycle = 2;
 
 void AddStats(DramStats& sum, const DramStats& s) {
-  sum.reads += s.reads;
-  sum.writes += s.writes;
-  sum.row_hits += s.row_hits;
-  sum.row_misses += s.row_misses;
-  sum.row_conflicts += s.row_conflicts;
-  sum.activates += s.activates;
-  sum.refreshes += s.refreshes;
-  sum.busy_ps += s.busy_ps;
-  sum.refresh_ps += s.refresh_ps;
+  for (uint64_t DramStats::*field : kDramStatsFields) sum.*field += s.*field;
 }
 
 class DramMemory final : public MemorySystem {
@@ -220,15 +214,7 @@ bool SameShape(const std::vector<uint64_t>& earlier, const std::vector<uint64_t>
 // a - b, field by field (b an earlier reading of the same counters).
 DramStats StatsSince(const DramStats& a, const DramStats& b) {
   DramStats d;
-  d.reads = a.reads - b.reads;
-  d.writes = a.writes - b.writes;
-  d.row_hits = a.row_hits - b.row_hits;
-  d.row_misses = a.row_misses - b.row_misses;
-  d.row_conflicts = a.row_conflicts - b.row_conflicts;
-  d.activates = a.activates - b.activates;
-  d.refreshes = a.refreshes - b.refreshes;
-  d.busy_ps = a.busy_ps - b.busy_ps;
-  d.refresh_ps = a.refresh_ps - b.refresh_ps;
+  for (uint64_t DramStats::*field : kDramStatsFields) d.*field = a.*field - b.*field;
   return d;
 }
 
@@ -378,10 +364,9 @@ void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const
   for (const DramChannel& c : channels_) words += c.ShapeWords();
   out.resize(words);  // mostly the size it had: nothing to fill
   uint64_t* w = out.data();
-  *w++ = p.done_ps > floor_ps ? p.done_ps - floor_ps : 0;
+  *w++ = DramChannel::SinceFloor(p.done_ps, floor_ps);
   for (size_t i = 0, slot = p.slot; i < p.window; ++i, slot = slot + 1 == p.window ? 0 : slot + 1) {
-    const uint64_t ps = window_ps_[slot];
-    *w++ = ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0);
+    *w++ = DramChannel::SinceFloor(window_ps_[slot], floor_ps);  // kUnknown is kNever
   }
   for (const DramChannel& c : channels_) w = c.WriteShape(floor_ps, p.slot, p.window, w);
 }
@@ -392,12 +377,11 @@ void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const
 void DramMemory::WriteProbe(const Progress& p, uint64_t slow_steps, uint64_t* out) const {
   const uint64_t floor_ps = p.now_ps;
   *out++ = slow_steps;
-  *out++ = p.done_ps > floor_ps ? p.done_ps - floor_ps : 0;
+  *out++ = DramChannel::SinceFloor(p.done_ps, floor_ps);
   for (size_t i = 0; i < kProbeWindowSlots; ++i) {
     const size_t ahead = i * p.window / kProbeWindowSlots;  // spread over the window
     const size_t slot = p.slot + ahead < p.window ? p.slot + ahead : p.slot + ahead - p.window;
-    const uint64_t ps = window_ps_[slot];
-    *out++ = ps == kUnknown ? ps : (ps > floor_ps ? ps - floor_ps : 0);
+    *out++ = DramChannel::SinceFloor(window_ps_[slot], floor_ps);
   }
   for (const DramChannel& c : channels_) out = c.WriteProbe(floor_ps, out);
 }

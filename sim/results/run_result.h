@@ -79,6 +79,13 @@ struct DramStats {
   }
 };
 
+// Every counter of DramStats, for code that adds, subtracts or scales them
+// field by field (a new counter goes here too).
+inline constexpr uint64_t DramStats::*kDramStatsFields[] = {
+    &DramStats::reads,      &DramStats::writes,        &DramStats::row_hits,
+    &DramStats::row_misses, &DramStats::row_conflicts, &DramStats::activates,
+    &DramStats::refreshes,  &DramStats::busy_ps,       &DramStats::refresh_ps};
+
 enum class Regime { kMemory, kCompute };
 
 // The resources that bound an op (sim/mapping/resource_bounds.h). Names in

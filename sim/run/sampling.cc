@@ -32,10 +32,7 @@ constexpr uint64_t EventCounts::*kEventFields[] = {
     &EventCounts::dram_refreshes};
 constexpr size_t kEventCount = sizeof kEventFields / sizeof kEventFields[0];
 
-constexpr uint64_t DramStats::*kDramFields[] = {
-    &DramStats::reads,      &DramStats::writes,        &DramStats::row_hits,
-    &DramStats::row_misses, &DramStats::row_conflicts, &DramStats::activates,
-    &DramStats::refreshes,  &DramStats::busy_ps,       &DramStats::refresh_ps};
+constexpr const auto& kDramFields = kDramStatsFields;
 constexpr size_t kDramCount = sizeof kDramFields / sizeof kDramFields[0];
 
 constexpr double ResourceDemand::*kDemandFields[] = {
