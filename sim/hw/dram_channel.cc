@@ -347,8 +347,8 @@ namespace {
 // wrote it, and the next transfer may start before this one's last event,
 // so a time before the floor is not dead for good. `Aged` writes a time at
 // or after the floor relative to it, an earlier one as itself, tagged with
-// the top bit (SameShape in memory_system.cc accepts an earlier time that
-// is either unchanged or moved by exactly the period). `Exact` writes times
+// the top bit (SameWord accepts an earlier time that is either unchanged or
+// moved by exactly the period). `Exact` writes times
 // that are compared with each other (arrivals, the last pick) relative to
 // the floor, without the tag. kNever stays itself.
 uint64_t Aged(uint64_t ps, uint64_t floor_ps) {
@@ -392,24 +392,40 @@ size_t DramChannel::ShapeWords() const {
          kQueuedWords * queued_;
 }
 
-uint64_t* DramChannel::WriteShape(uint64_t floor_ps, size_t slot, size_t window,
-                                  uint64_t* w) const {
-  *w++ = queued_;
-  *w++ = unopened_;
-  *w++ = Exact(pick_ok_ps_, floor_ps);
-  ForEachColumnTime(*this, [&](uint64_t ps) { *w++ = Aged(ps, floor_ps); });
+template <class Put>
+void DramChannel::EmitShape(uint64_t floor_ps, size_t slot, size_t window, Put&& put) const {
+  put(queued_);
+  put(unopened_);
+  put(Exact(pick_ok_ps_, floor_ps));
+  ForEachColumnTime(*this, [&](uint64_t ps) { put(Aged(ps, floor_ps)); });
   for (const Bank& b : banks_) {
-    *w++ = b.open_row;
-    *w++ = uint64_t{b.queued_hits} << 8 | static_cast<uint64_t>(b.ahead);
+    put(b.open_row);
+    put(uint64_t{b.queued_hits} << 8 | static_cast<uint64_t>(b.ahead));
   }
   for (size_t age = 0; age < queued_; ++age) {
     const DramRequest& r = At(age);
-    *w++ = r.row;
-    *w++ = Exact(r.arrival_ps, floor_ps);
-    *w++ = uint64_t{r.bank} << 1 | uint64_t{r.is_write};
-    *w++ = SlotFrom(r.tag, slot, window);
+    put(r.row);
+    put(Exact(r.arrival_ps, floor_ps));
+    put(uint64_t{r.bank} << 1 | uint64_t{r.is_write});
+    put(SlotFrom(r.tag, slot, window));
   }
+}
+
+uint64_t* DramChannel::WriteShape(uint64_t floor_ps, size_t slot, size_t window,
+                                  uint64_t* w) const {
+  EmitShape(floor_ps, slot, window, [&](uint64_t word) { *w++ = word; });
   return w;
+}
+
+const uint64_t* DramChannel::MatchShape(uint64_t floor_ps, size_t slot, size_t window,
+                                        uint64_t delta_ps, const uint64_t* earlier) const {
+  // The queue length sets the number of words: compared first, so the rest
+  // is read only when it lines up.
+  if (earlier[0] != queued_) return nullptr;
+  bool same = true;
+  EmitShape(floor_ps, slot, window,
+            [&](uint64_t word) { same &= SameWord(*earlier++, word, delta_ps); });
+  return same ? earlier : nullptr;
 }
 
 uint64_t* DramChannel::WriteProbe(uint64_t floor_ps, uint64_t* out) const {

@@ -89,6 +89,13 @@ struct DramPick {
   DramCommandTimes times;
 };
 
+// What a caller that keeps no command times needs of a pick (small enough
+// to come back in registers).
+struct DramPickEnd {
+  uint64_t done_ps = 0;  // last data beat on the bus
+  uint32_t tag = 0;
+};
+
 class DramChannel {
  public:
   // Bus turnaround from the end of read data to the start of write data, nCK
@@ -138,6 +145,9 @@ class DramChannel {
   // Pick() for a caller that already holds NextPickPs().
   // REQUIRES: !Empty(), now_ps == NextPickPs().
   DramPick PickAt(uint64_t now_ps);
+  // PickAt for the memory system's event loop: the same pick, returning only
+  // its tag and the end of its data.
+  DramPickEnd PickEndAt(uint64_t now_ps);
 
   // Does every refresh whose deadline is before end_ps.
   void Finish(uint64_t end_ps);
@@ -199,7 +209,7 @@ class DramChannel {
   // as themselves with kBeforeFloor set, times compared with each other
   // (arrivals, the last pick) exactly. Window tags are written relative to
   // the caller's next window slot `slot` (of `window`). If a look one period
-  // later writes words that agree (memory_system.cc, SameShape), the
+  // later writes words that agree (SameWord, word by word), the
   // channel's decisions in the rest of this transfer are those of the
   // period moved by the difference of the floors, until the refresh
   // deadline.
@@ -214,6 +224,21 @@ class DramChannel {
   // Writes ShapeWords() words at `out`; returns the end.
   uint64_t* WriteShape(uint64_t floor_ps, size_t slot, size_t window, uint64_t* out) const;
   size_t ShapeWords() const;
+  // Whether the shape WriteShape would write now repeats `earlier`, written
+  // one period of delta_ps before (SameWord, word by word), without writing
+  // it: the end of the channel's words in `earlier`, or null if they differ.
+  const uint64_t* MatchShape(uint64_t floor_ps, size_t slot, size_t window, uint64_t delta_ps,
+                             const uint64_t* earlier) const;
+  // Whether word `later` of a shape, written one period of delta_ps after
+  // `earlier`, repeats it: equal, or both times before their floors (tagged
+  // kBeforeFloor) and moved by exactly delta_ps (written in the period,
+  // before the later look's floor).
+  static bool SameWord(uint64_t earlier, uint64_t later, uint64_t delta_ps) {
+    if (earlier == later) return true;
+    const bool both_before =
+        (earlier & later & kBeforeFloor) != 0 && earlier != kNever && later != kNever;
+    return both_before && (later & ~kBeforeFloor) == (earlier & ~kBeforeFloor) + delta_ps;
+  }
   // A few words of the shape that change with nearly every request outside
   // a steady run (queue length, last pick, oldest arrival, CAS constraint,
   // queued hits at the two ends of the queue).
@@ -258,6 +283,8 @@ class DramChannel {
 
   static TimingPs ToPs(const DramTiming& t, uint64_t tck_ps);
   DramPick PickAny(uint64_t now_ps);
+  template <class Reduce>
+  auto PickReduced(uint64_t now_ps, Reduce reduce);
   DramPick PickOldestHit(uint64_t cas_ps);
   size_t ChooseFrFcfs(uint64_t now_ps) const;
   bool IsReadyHit(const DramRequest& r, uint64_t now_ps) const;
@@ -284,6 +311,10 @@ class DramChannel {
   // what Advance moves. Channel is DramChannel or const DramChannel.
   template <class Channel, class Visit>
   static void ForEachColumnTime(Channel& c, Visit&& visit);
+  // Calls put(word) on every word of the shape, in order (WriteShape and
+  // MatchShape).
+  template <class Put>
+  void EmitShape(uint64_t floor_ps, size_t slot, size_t window, Put&& put) const;
   void OpenRow(uint32_t bank, uint64_t row);
   void CloseRow(Bank& b);
   // Opening rows ahead (see the file comment); commands in [now_ps, horizon_ps].
@@ -432,7 +463,10 @@ inline DramPick DramChannel::PickOldestHit(uint64_t cas_ps) {
   return pick;
 }
 
-inline DramPick DramChannel::PickAt(uint64_t now_ps) {
+// PickAt's two paths, each reduced by `reduce` before they meet (so that a
+// small result stays in registers).
+template <class Reduce>
+inline auto DramChannel::PickReduced(uint64_t now_ps, Reduce reduce) {
   const DramRequest& oldest = queue_[head_];
   if (now_ps < next_refresh_ps_ && IsReadyHit(oldest, now_ps)) {
     // A ready hit's CAS waits only for channel-wide constraints (ACT + tRCD has passed).
@@ -440,10 +474,20 @@ inline DramPick DramChannel::PickAt(uint64_t now_ps) {
     if (cas_ps < next_refresh_ps_) {
       const DramPick pick = PickOldestHit(cas_ps);
       OpenRowsAhead(now_ps, cas_ps);
-      return pick;
+      return reduce(pick);
     }
   }
-  return PickAny(now_ps);
+  return reduce(PickAny(now_ps));
+}
+
+inline DramPick DramChannel::PickAt(uint64_t now_ps) {
+  return PickReduced(now_ps, [](const DramPick& pick) { return pick; });
+}
+
+inline DramPickEnd DramChannel::PickEndAt(uint64_t now_ps) {
+  return PickReduced(now_ps, [](const DramPick& pick) {
+    return DramPickEnd{pick.times.done_ps, pick.tag};
+  });
 }
 
 }  // namespace tritsim

@@ -129,7 +129,12 @@ class DramMemory final : public MemorySystem {
   }
   template <bool kOneChannel>
   void LookForSteadyRun(Progress& p);
+  template <class Put>
+  void EmitWindowShape(const Progress& p, Put&& put) const;
+  size_t ShapeWords(const Progress& p) const;
   void WriteShape(const Progress& p, std::vector<uint64_t>& out) const;
+  bool ShapeRepeats(const Progress& p, const std::vector<uint64_t>& earlier,
+                    uint64_t delta_ps) const;
   void WriteProbe(const Progress& p, uint64_t slow_steps, uint64_t* out) const;  // probe_words_
   uint64_t RequestsLeftInRun(const Progress& p) const;
   uint64_t PeriodsAhead(const Progress& p, uint64_t period, uint64_t delta_ps) const;
@@ -172,7 +177,6 @@ class DramMemory final : public MemorySystem {
   size_t probe_next_ = 0;  // ring entry the next probe goes to
   Candidate candidate_;
   uint64_t skipped_requests_ = 0;
-  std::vector<uint64_t> scratch_;   // the shape of this look
   DramCommandLog* log_ = nullptr;   // null: no command log
   uint64_t transfer_start_ps_ = 0;  // start_ps of the current Transfer
 };
@@ -192,24 +196,6 @@ constexpr size_t kProbeWindowSlots = 8;
 // Probe words per request a look may cost on average: a look every
 // probe_words_ / kProbeWordsPerRequest requests or more.
 constexpr uint64_t kProbeWordsPerRequest = 2;
-
-// Whether `later`, written one period of delta_ps after `earlier`, repeats
-// it: every word equal, except that a time before the floor (tagged by
-// DramChannel::kBeforeFloor) may also have moved by exactly delta_ps (it was
-// written in the period, before this look's floor).
-bool SameShape(const std::vector<uint64_t>& earlier, const std::vector<uint64_t>& later,
-               uint64_t delta_ps) {
-  if (earlier.size() != later.size()) return false;
-  constexpr uint64_t kTag = DramChannel::kBeforeFloor;
-  for (size_t i = 0; i < later.size(); ++i) {
-    const uint64_t a = earlier[i], b = later[i];
-    if (a == b) continue;
-    const bool both_before =
-        (a & b & kTag) != 0 && a != DramChannel::kNever && b != DramChannel::kNever;
-    if (!both_before || (b & ~kTag) != (a & ~kTag) + delta_ps) return false;
-  }
-  return true;
-}
 
 // a - b, field by field (b an earlier reading of the same counters).
 DramStats StatsSince(const DramStats& a, const DramStats& b) {
@@ -283,10 +269,10 @@ void DramMemory::Arrive(Progress& p, uint64_t when_ps) {
 
 template <bool kOneChannel>
 void DramMemory::PickOn(Progress& p, size_t channel, uint64_t when_ps) {
-  const DramPick pick = channels_[channel].PickAt(when_ps);
+  const DramPickEnd pick = channels_[channel].PickEndAt(when_ps);
   UpdatePick<kOneChannel>(channel);
-  window_ps_[pick.tag] = pick.times.done_ps;
-  p.done_ps = std::max(p.done_ps, pick.times.done_ps);
+  window_ps_[pick.tag] = pick.done_ps;
+  p.done_ps = std::max(p.done_ps, pick.done_ps);
   p.now_ps = when_ps;
   ++p.picked;
   if (log_ != nullptr && log_->held() >= kLogReleaseBatch) ReleaseLog();
@@ -358,17 +344,42 @@ void DramMemory::RunEvents(Progress& p) {
 // The whole state, relative to the current event time (see
 // DramChannel::WriteShape): the latest completion, the window's gates from
 // the next slot on, and every channel.
-void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const {
+template <class Put>
+void DramMemory::EmitWindowShape(const Progress& p, Put&& put) const {
   const uint64_t floor_ps = p.now_ps;
+  put(DramChannel::SinceFloor(p.done_ps, floor_ps));
+  for (size_t i = 0, slot = p.slot; i < p.window; ++i, slot = slot + 1 == p.window ? 0 : slot + 1) {
+    put(DramChannel::SinceFloor(window_ps_[slot], floor_ps));  // kUnknown is kNever
+  }
+}
+
+size_t DramMemory::ShapeWords(const Progress& p) const {
   size_t words = 1 + p.window;
   for (const DramChannel& c : channels_) words += c.ShapeWords();
-  out.resize(words);  // mostly the size it had: nothing to fill
+  return words;
+}
+
+void DramMemory::WriteShape(const Progress& p, std::vector<uint64_t>& out) const {
+  out.resize(ShapeWords(p));  // mostly the size it had: nothing to fill
   uint64_t* w = out.data();
-  *w++ = DramChannel::SinceFloor(p.done_ps, floor_ps);
-  for (size_t i = 0, slot = p.slot; i < p.window; ++i, slot = slot + 1 == p.window ? 0 : slot + 1) {
-    *w++ = DramChannel::SinceFloor(window_ps_[slot], floor_ps);  // kUnknown is kNever
+  EmitWindowShape(p, [&](uint64_t word) { *w++ = word; });
+  for (const DramChannel& c : channels_) w = c.WriteShape(p.now_ps, p.slot, p.window, w);
+}
+
+// Whether the shape WriteShape would write now repeats `earlier`, written
+// one period of delta_ps before (DramChannel::SameWord, word by word),
+// compared in place: a check that passes writes nothing.
+bool DramMemory::ShapeRepeats(const Progress& p, const std::vector<uint64_t>& earlier,
+                              uint64_t delta_ps) const {
+  if (earlier.size() != ShapeWords(p)) return false;
+  const uint64_t* e = earlier.data();
+  bool same = true;
+  EmitWindowShape(p, [&](uint64_t word) { same &= DramChannel::SameWord(*e++, word, delta_ps); });
+  for (auto c = channels_.begin(); same && c != channels_.end(); ++c) {
+    e = c->MatchShape(p.now_ps, p.slot, p.window, delta_ps, e);
+    same = e != nullptr;
   }
-  for (const DramChannel& c : channels_) w = c.WriteShape(floor_ps, p.slot, p.window, w);
+  return same;
 }
 
 // A few words of the state that change with nearly every request outside a
@@ -396,16 +407,13 @@ void DramMemory::LookForSteadyRun(Progress& p) {
   uint64_t slow_steps = 0;
   for (const DramChannel& c : channels_) slow_steps += c.slow_steps();
   Candidate& c = candidate_;
-  bool shape_written = false;  // scratch_ holds this look's shape
   if (c.valid) {
     if (p.picked - c.picked < c.period) return;
     c.valid = false;
     if (slow_steps == c.slow_steps && p.arrived - c.arrived == c.period) {
-      WriteShape(p, scratch_);
-      shape_written = true;
       const uint64_t delta_ps = p.now_ps - c.floor_ps;
       if (delta_ps > 0 && delta_ps % channels_.front().tck_ps() == 0 &&
-          SameShape(c.shape, scratch_, delta_ps)) {
+          ShapeRepeats(p, c.shape, delta_ps)) {
         const uint64_t periods = PeriodsAhead(p, c.period, delta_ps);
         if (periods > 0) {
           SkipPeriods<kOneChannel>(p, periods, delta_ps);
@@ -435,11 +443,7 @@ void DramMemory::LookForSteadyRun(Progress& p) {
   c.arrived = p.arrived;
   c.floor_ps = p.now_ps;
   c.slow_steps = slow_steps;
-  if (shape_written) {
-    c.shape.swap(scratch_);
-  } else {
-    WriteShape(p, c.shape);
-  }
+  WriteShape(p, c.shape);
   c.stats.resize(channels_.size());
   for (size_t i = 0; i < channels_.size(); ++i) c.stats[i] = channels_[i].stats();
 }
