@@ -43,7 +43,8 @@ namespace tritsim {
 
 struct SamplingOptions {
   int64_t layers = 0;          // decoder layers per step (the model's); >= 1
-  int64_t decode_steps = 8;    // decode steps kept (all when the workload has fewer), >= 3
+  int64_t decode_steps = 6;    // decode steps kept (all when the workload has fewer), >= 3;
+                               // why 6: docs/performance.md, "Sample size"
   int64_t step_layers = 2;     // layers sampled per kept decode step besides the first and
                                // last (all when fewer), >= 2
   int64_t prefill_layers = 4;  // same in the prefill, >= 2

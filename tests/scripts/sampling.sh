@@ -35,10 +35,10 @@ args=(run --model models/wren-0.7b.yaml --arch configs/heron-edge-ddr4.yaml --se
 "$PY" - <<'PY' || fail "sampling keys of the JSON"
 import json
 s = json.load(open("s.json"))["sampling"]
-assert s["detailed_steps"] == 8 and s["total_steps"] == 12, s  # 8 decode steps kept by default
+assert s["detailed_steps"] == 6 and s["total_steps"] == 12, s  # 6 decode steps kept by default
 b = s["relative_error_bound"]
 assert 0 < b["cycles"] < 0.01 and 0 < b["energy_joules"] < 0.01, b
-assert s["total_layers"] == 12 * 6 and s["detailed_layers"] == 8 * 4, s  # first, last + 2 sampled
+assert s["total_layers"] == 12 * 6 and s["detailed_layers"] == 6 * 4, s  # first, last + 2 sampled
 assert "sampling" not in json.load(open("e.json"))
 PY
 "$PY" "$SRC/tests/scripts/lib/validate_json.py" "$SRC/docs/schemas/run.schema.json" s.json ||
