@@ -57,6 +57,7 @@ DramAddressMap::DramAddressMap(const DramConfig& dram) {
   // address_map is most significant first; walk it from the least significant end.
   for (size_t i = kFieldCount; i-- > 0;) {
     const size_t f = Index(dram.address_map[i]);
+    low_first_[kFieldCount - 1 - i] = dram.address_map[i];
     radix_[f] = RadixOf(dram, dram.address_map[i]);
     below_[f] = below;
     shift_[f] = Log2(below);

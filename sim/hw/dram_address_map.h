@@ -44,6 +44,20 @@ class DramAddressMap {
     return where;
   }
 
+  // Turns `where` = Decode(a) into Decode(a + burst_bytes()), cheaper: the
+  // least significant field counts up and carries into the next.
+  void Next(DramAddress& where) const {
+    for (AddressField f : low_first_) {
+      if (f == AddressField::kRow) {
+        ++where.row;
+        return;
+      }
+      uint32_t& digit = DigitOf(where, f);
+      if (++digit < radix_[static_cast<size_t>(f)]) return;
+      digit = 0;
+    }
+  }
+
   // Decode(byte_address).channel, cheaper.
   uint32_t ChannelOf(uint64_t byte_address) const {
     return static_cast<uint32_t>(Digit(BurstIndex(byte_address), AddressField::kChannel));
@@ -63,6 +77,18 @@ class DramAddressMap {
   static constexpr int kFields = 5;
 
   uint64_t RadixOf(const DramConfig& dram, AddressField field) const;
+  static uint32_t& DigitOf(DramAddress& where, AddressField field) {
+    switch (field) {
+      case AddressField::kChannel:
+        return where.channel;
+      case AddressField::kBankGroup:
+        return where.bank_group;
+      case AddressField::kBank:
+        return where.bank;
+      default:
+        return where.column;
+    }
+  }
   uint64_t BurstIndex(uint64_t byte_address) const {
     return power_of_two_ ? byte_address >> burst_shift_ : byte_address / burst_bytes_;
   }
@@ -83,7 +109,8 @@ class DramAddressMap {
   std::array<uint64_t, kFields> radix_{};
   std::array<uint64_t, kFields> below_{};
   std::array<unsigned, kFields> shift_{};
-  std::array<uint64_t, kFields> mask_{};  // radix - 1; all ones for the row
+  std::array<uint64_t, kFields> mask_{};           // radix - 1; all ones for the row
+  std::array<AddressField, kFields> low_first_{};  // the fields, least significant first
 };
 
 }  // namespace tritsim

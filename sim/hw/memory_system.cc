@@ -264,7 +264,7 @@ void DramMemory::Arrive(Progress& p, uint64_t when_ps) {
   p.slot = p.slot + 1 == p.window ? 0 : p.slot + 1;
   ++p.arrived;
   p.next_address += map_.burst_bytes();
-  p.next = map_.Decode(p.next_address);
+  map_.Next(p.next);
 }
 
 template <bool kOneChannel>
