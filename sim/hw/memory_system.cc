@@ -174,7 +174,8 @@ class DramMemory final : public MemorySystem {
   size_t probe_words_ = 0;
   std::vector<uint64_t> probe_ring_;  // kProbes x probe_words_
   size_t probes_held_ = 0;
-  size_t probe_next_ = 0;  // ring entry the next probe goes to
+  size_t probe_next_ = 0;           // ring entry the next probe goes to
+  uint64_t probed_slow_steps_ = 0;  // the channels' slow steps at the last look
   Candidate candidate_;
   uint64_t skipped_requests_ = 0;
   DramCommandLog* log_ = nullptr;   // null: no command log
@@ -422,6 +423,14 @@ void DramMemory::LookForSteadyRun(Progress& p) {
         }
       }
     }
+  }
+  // Slow steps only add up, so no probe taken before the last one can be
+  // repeated: a look after slow steps empties the ring and takes no probe
+  // (the state right after them is still settling).
+  if (slow_steps != probed_slow_steps_) {
+    probed_slow_steps_ = slow_steps;
+    probes_held_ = 0;
+    return;
   }
   // The probe goes straight into its ring entry, then meets the older ones.
   const auto probe = probe_ring_.begin() + static_cast<std::ptrdiff_t>(probe_next_ * probe_words_);
