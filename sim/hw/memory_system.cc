@@ -186,6 +186,11 @@ class DramMemory final : public MemorySystem {
 // the scan over the channels rare; its size bounds the log's memory).
 constexpr size_t kLogReleaseBatch = 4096;
 
+// The window slot `ahead` slots after `slot` (ahead <= window), wrapping.
+size_t SlotAhead(size_t slot, size_t ahead, size_t window) {
+  return slot + ahead < window ? slot + ahead : slot + ahead - window;
+}
+
 size_t RoundUpToPowerOfTwo(size_t n) {
   size_t p = 1;
   while (p < n) p *= 2;
@@ -262,7 +267,7 @@ void DramMemory::Arrive(Progress& p, uint64_t when_ps) {
   }
   window_ps_[p.slot] = kUnknown;
   p.now_ps = when_ps;
-  p.slot = p.slot + 1 == p.window ? 0 : p.slot + 1;
+  p.slot = SlotAhead(p.slot, 1, p.window);
   ++p.arrived;
   p.next_address += map_.burst_bytes();
   map_.Next(p.next);
@@ -349,7 +354,7 @@ template <class Put>
 void DramMemory::EmitWindowShape(const Progress& p, Put&& put) const {
   const uint64_t floor_ps = p.now_ps;
   put(DramChannel::SinceFloor(p.done_ps, floor_ps));
-  for (size_t i = 0, slot = p.slot; i < p.window; ++i, slot = slot + 1 == p.window ? 0 : slot + 1) {
+  for (size_t i = 0, slot = p.slot; i < p.window; ++i, slot = SlotAhead(slot, 1, p.window)) {
     put(DramChannel::SinceFloor(window_ps_[slot], floor_ps));  // kUnknown is kNever
   }
 }
@@ -392,8 +397,7 @@ void DramMemory::WriteProbe(const Progress& p, uint64_t slow_steps, uint64_t* ou
   *out++ = DramChannel::SinceFloor(p.done_ps, floor_ps);
   for (size_t i = 0; i < kProbeWindowSlots; ++i) {
     const size_t ahead = i * p.window / kProbeWindowSlots;  // spread over the window
-    const size_t slot = p.slot + ahead < p.window ? p.slot + ahead : p.slot + ahead - p.window;
-    *out++ = DramChannel::SinceFloor(window_ps_[slot], floor_ps);
+    *out++ = DramChannel::SinceFloor(window_ps_[SlotAhead(p.slot, ahead, p.window)], floor_ps);
   }
   for (const DramChannel& c : channels_) out = c.WriteProbe(floor_ps, out);
 }
@@ -503,7 +507,7 @@ void DramMemory::SkipPeriods(Progress& p, uint64_t periods, uint64_t delta_ps) {
   }
   p.now_ps += moved_ps;
   p.done_ps += moved_ps;
-  p.slot = p.slot + slots < p.window ? p.slot + slots : p.slot + slots - p.window;
+  p.slot = SlotAhead(p.slot, slots, p.window);
   p.arrived += requests;
   p.picked += requests;
   skipped_requests_ += requests;

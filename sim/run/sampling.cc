@@ -32,8 +32,7 @@ constexpr uint64_t EventCounts::*kEventFields[] = {
     &EventCounts::dram_refreshes};
 constexpr size_t kEventCount = sizeof kEventFields / sizeof kEventFields[0];
 
-constexpr const auto& kDramFields = kDramStatsFields;
-constexpr size_t kDramCount = sizeof kDramFields / sizeof kDramFields[0];
+constexpr size_t kDramCount = sizeof kDramStatsFields / sizeof kDramStatsFields[0];
 
 constexpr double ResourceDemand::*kDemandFields[] = {
     &ResourceDemand::dram_bytes, &ResourceDemand::decoder_bytes, &ResourceDemand::array_products,
@@ -85,7 +84,7 @@ Vec GlobalsOf(const RunResult& r) {
   v[kCycles] = double(r.cycles);
   for (size_t i = 0; i < kStallCount; ++i) v[kStalls + i] = double(r.stalls.*kStallFields[i]);
   for (size_t i = 0; i < kEventCount; ++i) v[kEvents + i] = double(r.events.*kEventFields[i]);
-  for (size_t i = 0; i < kDramCount; ++i) v[kDram + i] = double(r.dram.*kDramFields[i]);
+  for (size_t i = 0; i < kDramCount; ++i) v[kDram + i] = double(r.dram.*kDramStatsFields[i]);
   v[kVectorBusy] = double(r.vector_busy_cycles);
   v[kSramPortBusy] = double(r.sram_port_busy_cycles);
   return v;
@@ -589,7 +588,7 @@ RunResult UnitMeter::Assemble(const RunResult& reduced, const PhaseEstimate* est
   const std::vector<uint64_t> stalls = Apportion(stall_parts, out.cycles);
   for (size_t i = 0; i < kStallCount; ++i) out.stalls.*kStallFields[i] = stalls[i];
   out.events = EventsAt(total, kEvents);
-  for (size_t i = 0; i < kDramCount; ++i) out.dram.*kDramFields[i] = Count(total[kDram + i]);
+  for (size_t i = 0; i < kDramCount; ++i) out.dram.*kDramStatsFields[i] = Count(total[kDram + i]);
   out.events.dram_activates = out.dram.activates;
   out.events.dram_refreshes = out.dram.refreshes;
   out.vector_busy_cycles = Count(total[kVectorBusy]);
